@@ -1,0 +1,109 @@
+using SpinSim.Core.Model;
+
+namespace SpinSim.Core.Engine;
+
+/// <summary>
+/// Turns a spin system into its exact list of observed transitions. Every magnetically equivalent set is reduced
+/// to its total spins (<see cref="CompositeSpins"/>); the spectrum is the multiplicity-weighted sum over every
+/// combination of total spins of the sets.
+/// </summary>
+public static class SpectrumEngine
+{
+    public static LineList Compute(SpinSystem system, EngineOptions? options = null, CancellationToken cancel = default)
+    {
+        options ??= EngineOptions.Default;
+        var estimate = ResourceEstimate.For(system);
+        if (estimate.WorkingBytes > options.MemoryBudgetBytes)
+            throw new SystemTooLargeException(estimate, options.MemoryBudgetBytes);
+
+        var backend = options.ResolvedBackend;
+        var observeMHz = system.Observed.ObserveMHz(system.Field);
+        var expectedTotal = ExpectedTotalIntensity(system);
+        var floor = options.RelativeIntensityFloor * expectedTotal;
+
+        var raw = new List<RawLine>();
+        var largest = 0;
+        var blocks = 0;
+        foreach (var combination in Combinations(system))
+        {
+            var solver = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, system.Nuclei.Count, backend);
+            var sizes = solver.BlockSizes();
+            largest = Math.Max(largest, sizes.DefaultIfEmpty(0).Max());
+            blocks += sizes.Count;
+            raw.AddRange(solver.Solve(combination.Weight, floor, cancel));
+        }
+
+        var lines = Merge(raw, options.MergeToleranceHz, observeMHz);
+        var dropped = Math.Max(0, expectedTotal - lines.Sum(l => l.Intensity));
+        return new LineList(lines, observeMHz, expectedTotal, dropped, largest, blocks, backend.Name, []);
+    }
+
+    /// <summary>Tr(F+ F-) = N 2^(N-1) for N observed spin-1/2 nuclei, times 2^M for M unobserved ones.</summary>
+    public static double ExpectedTotalIntensity(SpinSystem system)
+    {
+        var observed = system.ObservedNucleusCount;
+        var all = system.Nuclei.Sum(n => n.Count);
+        return observed * Math.Pow(2, all - 1);
+    }
+
+    internal sealed record Combination(Particle[] Particles, double[,] CouplingsHz, double Weight);
+
+    /// <summary>Every combination of total spins of the equivalent sets, with its multiplicity as weight.</summary>
+    internal static IEnumerable<Combination> Combinations(SpinSystem system)
+    {
+        var entries = system.Nuclei.Count;
+        var groups = system.Nuclei.Select(n => n.Isotope).Distinct().ToList();
+        var j = system.CouplingMatrixHz();
+        var options = system.Nuclei.Select(n => CompositeSpins.Decompose(n.Count)).ToArray();
+        var choice = new int[entries];
+        while (true)
+        {
+            var particles = new List<Particle>();
+            var index = new List<int>();
+            double weight = 1;
+            for (var e = 0; e < entries; e++)
+            {
+                var spin = options[e][choice[e]];
+                weight *= spin.Multiplicity;
+                if (spin.TwiceF == 0) continue; // a total spin of 0 neither flips nor shifts anything
+                var n = system.Nuclei[e];
+                particles.Add(new Particle(e, spin.TwiceF, groups.IndexOf(n.Isotope), system.FrequencyHz(e), n.Isotope == system.Observed));
+                index.Add(e);
+            }
+            var couplings = new double[particles.Count, particles.Count];
+            for (var p = 0; p < particles.Count; p++)
+                for (var q = 0; q < particles.Count; q++)
+                    couplings[p, q] = p == q ? 0 : j[index[p], index[q]];
+            yield return new Combination(particles.ToArray(), couplings, weight);
+
+            var k = entries - 1;
+            while (k >= 0 && ++choice[k] == options[k].Count) choice[k--] = 0;
+            if (k < 0) yield break;
+        }
+    }
+
+    internal static List<Line> Merge(List<RawLine> raw, double toleranceHz, double observeMHz)
+    {
+        raw.Sort((a, b) => a.FrequencyHz.CompareTo(b.FrequencyHz));
+        var merged = new List<Line>();
+        var i = 0;
+        while (i < raw.Count)
+        {
+            var start = i;
+            double sumI = 0, sumF = 0;
+            var origin = new double[raw[i].Origin.Length];
+            do
+            {
+                var r = raw[i];
+                sumI += r.Intensity;
+                sumF += r.Intensity * r.FrequencyHz;
+                for (var e = 0; e < origin.Length; e++) origin[e] += r.Intensity * r.Origin[e];
+                i++;
+            } while (i < raw.Count && raw[i].FrequencyHz - raw[i - 1].FrequencyHz <= toleranceHz);
+            for (var e = 0; e < origin.Length; e++) origin[e] /= sumI;
+            var f = i - start == 1 ? raw[start].FrequencyHz : sumF / sumI;
+            merged.Add(new Line(f, f / observeMHz, sumI, origin));
+        }
+        return merged;
+    }
+}

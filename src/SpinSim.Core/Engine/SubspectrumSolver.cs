@@ -1,0 +1,247 @@
+using SpinSim.Core.LinearAlgebra;
+
+namespace SpinSim.Core.Engine;
+
+/// <summary>A spin-F particle of one diagonalisation: a single nucleus (F = 1/2) or one total spin of an equivalent set.</summary>
+/// <param name="Entry">Index of the nucleus entry of the spin system this particle stands for.</param>
+/// <param name="IsotopeGroup">Particles with equal groups are homonuclear (full I.I coupling, shared M block label).</param>
+internal readonly record struct Particle(int Entry, int TwiceF, int IsotopeGroup, double FrequencyHz, bool Observed);
+
+/// <summary>A raw line before merging: frequency, weighted intensity and the origin weights per entry.</summary>
+internal readonly record struct RawLine(double FrequencyHz, double Intensity, double[] Origin);
+
+/// <summary>
+/// Diagonalises the secular Hamiltonian H = sum nu_p Fz_p + sum J_pq (F_p . F_q) [homonuclear] or J_pq Fz_p Fz_q
+/// [heteronuclear] of a few particles, block by block in the z-magnetisation of each isotope, and returns the
+/// observed lines of F- = sum over observed particles of F-_p, each intensity multiplied by <c>weight</c>.
+/// </summary>
+internal sealed class SubspectrumSolver
+{
+    private readonly Particle[] _particles;
+    private readonly double[,] _jHz;
+    private readonly int _entryCount;
+    private readonly IDenseBackend _backend;
+
+    private readonly int[] _dims;
+    private readonly int[] _strides;
+    private readonly int _totalStates;
+
+    public SubspectrumSolver(Particle[] particles, double[,] couplingsHz, int entryCount, IDenseBackend backend)
+    {
+        _particles = particles;
+        _jHz = couplingsHz;
+        _entryCount = entryCount;
+        _backend = backend;
+        _dims = particles.Select(p => p.TwiceF + 1).ToArray();
+        _strides = new int[particles.Length];
+        long total = 1;
+        for (var p = particles.Length - 1; p >= 0; p--)
+        {
+            _strides[p] = (int)total;
+            total *= _dims[p];
+            if (total > int.MaxValue / 4) throw new InvalidOperationException("state space too large to enumerate; the caller must check the resource estimate first");
+        }
+        _totalStates = (int)total;
+    }
+
+    /// <summary>Sizes of the blocks this solver will diagonalise, without building them.</summary>
+    public IReadOnlyList<int> BlockSizes() => Partition().Blocks.Select(b => b.Length).ToArray();
+
+    public List<RawLine> Solve(double weight, double intensityFloor, CancellationToken cancel)
+    {
+        var (blocks, keyOf, lowerKeyStep) = Partition();
+        var blockIndexOfKey = new Dictionary<long, int>();
+        for (var b = 0; b < blocks.Count; b++) blockIndexOfKey[keyOf[b]] = b;
+
+        var local = new int[_totalStates];
+        foreach (var codes in blocks)
+            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
+
+        // Eigen-decomposition of every block that takes part in an observed transition.
+        var vectors = new double[blocks.Count][];
+        var energies = new double[blocks.Count][];
+        var pairs = new List<(int Upper, int Lower)>();
+        var needed = new bool[blocks.Count];
+        for (var b = 0; b < blocks.Count; b++)
+            if (lowerKeyStep != 0 && blockIndexOfKey.TryGetValue(keyOf[b] - lowerKeyStep, out var lower))
+            {
+                pairs.Add((b, lower));
+                needed[b] = needed[lower] = true;
+            }
+
+        var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
+        Parallel.ForEach(order, new ParallelOptions { CancellationToken = cancel }, b =>
+        {
+            var n = blocks[b].Length;
+            var h = BuildBlock(blocks[b], local);
+            var w = new double[n];
+            _backend.SymmetricEigen(n, h, w);
+            vectors[b] = h;
+            energies[b] = w;
+        });
+
+        var results = new List<RawLine>[pairs.Count];
+        Parallel.For(0, pairs.Count, new ParallelOptions { CancellationToken = cancel }, k =>
+        {
+            var (u, l) = pairs[k];
+            results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], local, weight, intensityFloor);
+        });
+        return results.SelectMany(r => r).ToList();
+    }
+
+    private (List<int[]> Blocks, long[] KeyOf, long LowerKeyStep) Partition()
+    {
+        var groups = _particles.Length == 0 ? 0 : _particles.Max(p => p.IsotopeGroup) + 1;
+        var maxTwiceM = new int[groups];
+        foreach (var p in _particles) maxTwiceM[p.IsotopeGroup] += p.TwiceF;
+        var radix = new long[groups];
+        long r = 1;
+        for (var g = 0; g < groups; g++) { radix[g] = r; r *= 2L * maxTwiceM[g] + 1; }
+
+        var observedGroup = _particles.Where(p => p.Observed).Select(p => p.IsotopeGroup).DefaultIfEmpty(-1).First();
+        var lowerKeyStep = observedGroup >= 0 ? 2 * radix[observedGroup] : 0;
+
+        var byKey = new Dictionary<long, List<int>>();
+        var digits = new int[_particles.Length];
+        for (var code = 0; code < _totalStates; code++)
+        {
+            long key = 0;
+            for (var g = 0; g < groups; g++) key += maxTwiceM[g] * radix[g];
+            for (var p = 0; p < _particles.Length; p++)
+                key += (2L * digits[p] - _particles[p].TwiceF) * radix[_particles[p].IsotopeGroup];
+            if (!byKey.TryGetValue(key, out var list)) byKey[key] = list = [];
+            list.Add(code);
+            Increment(digits);
+        }
+        var keys = byKey.Keys.OrderBy(k => k).ToArray();
+        return (keys.Select(k => byKey[k].ToArray()).ToList(), keys, lowerKeyStep);
+    }
+
+    private void Increment(int[] digits)
+    {
+        for (var p = digits.Length - 1; p >= 0; p--)
+        {
+            if (++digits[p] < _dims[p]) return;
+            digits[p] = 0;
+        }
+    }
+
+    private double M(int code, int p) => (code / _strides[p]) % _dims[p] - _particles[p].TwiceF / 2.0;
+
+    /// <summary>The block of H in the product basis, column-major, lower triangle and diagonal filled.</summary>
+    private double[] BuildBlock(int[] codes, int[] local)
+    {
+        var n = codes.Length;
+        var h = new double[(long)n * n];
+        var count = _particles.Length;
+        var m = new double[count];
+        for (var i = 0; i < n; i++)
+        {
+            var code = codes[i];
+            for (var p = 0; p < count; p++) m[p] = M(code, p);
+            var diagonal = 0.0;
+            for (var p = 0; p < count; p++)
+            {
+                diagonal += _particles[p].FrequencyHz * m[p];
+                for (var q = p + 1; q < count; q++) diagonal += _jHz[p, q] * m[p] * m[q];
+            }
+            h[i + (long)i * n] = diagonal;
+
+            // Flip-flop terms J/2 (F+_p F-_q + F-_p F+_q) connect states of the same block.
+            for (var p = 0; p < count; p++)
+            {
+                var fp = _particles[p].TwiceF / 2.0;
+                if (m[p] >= fp) continue;
+                for (var q = 0; q < count; q++)
+                {
+                    if (q == p || _jHz[p, q] == 0 || _particles[q].IsotopeGroup != _particles[p].IsotopeGroup) continue;
+                    var fq = _particles[q].TwiceF / 2.0;
+                    if (m[q] <= -fq) continue;
+                    var target = code + _strides[p] - _strides[q];
+                    var j = local[target];
+                    if (j < i) continue; // fill the lower triangle only: row j >= column i
+                    h[j + (long)i * n] = 0.5 * _jHz[p, q]
+                        * CompositeSpins.LadderElement(fp, m[p], +1) * CompositeSpins.LadderElement(fq, m[q], -1);
+                }
+            }
+        }
+        return h;
+    }
+
+    private List<RawLine> Transitions(int[] upperCodes, int[] lowerCodes, double[] vUpper, double[] vLower,
+        double[] eUpper, double[] eLower, int[] local, double weight, double intensityFloor)
+    {
+        int nu = upperCodes.Length, nl = lowerCodes.Length;
+        var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
+
+        // X = F- V_upper, built column by column from the sparse F- (at most one target per particle).
+        var entries = new List<(int Row, int Col, double Value)>();
+        for (var i = 0; i < nu; i++)
+        {
+            var code = upperCodes[i];
+            foreach (var p in observed)
+            {
+                var m = M(code, p);
+                var f = _particles[p].TwiceF / 2.0;
+                if (m <= -f) continue;
+                entries.Add((local[code - _strides[p]], i, CompositeSpins.LadderElement(f, m, -1)));
+            }
+        }
+        var x = new double[(long)nl * nu];
+        for (var a = 0; a < nu; a++)
+        {
+            var column = (long)a * nl;
+            var source = (long)a * nu;
+            foreach (var (row, col, value) in entries)
+                x[column + row] += value * vUpper[source + col];
+        }
+        var t = new double[(long)nl * nu];
+        _backend.MultiplyTransposedA(nl, nu, nl, vLower, x, t);
+
+        var izUpper = ExpectedIz(upperCodes, vUpper, observed);
+        var izLower = ExpectedIz(lowerCodes, vLower, observed);
+        var lines = new List<RawLine>();
+        for (var a = 0; a < nu; a++)
+            for (var b = 0; b < nl; b++)
+            {
+                var amplitude = t[b + (long)a * nl];
+                var intensity = weight * amplitude * amplitude;
+                if (intensity <= intensityFloor) continue;
+                lines.Add(new RawLine(eUpper[a] - eLower[b], intensity, Origin(izUpper, a, izLower, b, observed)));
+            }
+        return lines;
+    }
+
+    /// <summary>&lt;a|Fz_p|a&gt; for every eigenstate a and observed particle p, as [a * observed.Length + k].</summary>
+    private double[] ExpectedIz(int[] codes, double[] v, int[] observed)
+    {
+        var n = codes.Length;
+        var result = new double[n * observed.Length];
+        for (var a = 0; a < n; a++)
+            for (var i = 0; i < n; i++)
+            {
+                var c2 = v[i + (long)a * n] * v[i + (long)a * n];
+                for (var k = 0; k < observed.Length; k++) result[a * observed.Length + k] += c2 * M(codes[i], observed[k]);
+            }
+        return result;
+    }
+
+    private double[] Origin(double[] izUpper, int a, double[] izLower, int b, int[] observed)
+    {
+        var origin = new double[_entryCount];
+        var total = 0.0;
+        for (var k = 0; k < observed.Length; k++)
+        {
+            var change = Math.Max(0, izUpper[a * observed.Length + k] - izLower[b * observed.Length + k]);
+            origin[_particles[observed[k]].Entry] += change;
+            total += change;
+        }
+        if (total <= 0)
+        {
+            foreach (var p in observed) origin[_particles[p].Entry] = 1.0 / observed.Length;
+            return origin;
+        }
+        for (var e = 0; e < origin.Length; e++) origin[e] /= total;
+        return origin;
+    }
+}

@@ -1,0 +1,69 @@
+using System.Runtime.InteropServices;
+
+namespace SpinSim.Core.LinearAlgebra;
+
+/// <summary>
+/// LAPACK dsyevd and BLAS dgemm called directly from the system OpenBLAS (Debian: libopenblas0-pthread,
+/// library libopenblas.so.0), through its Fortran symbols. MathNet's own OpenBLAS provider needs a wrapper
+/// library that is not shipped for Linux, hence the direct calls.
+/// </summary>
+public sealed unsafe class OpenBlasBackend : IDenseBackend
+{
+    private const string Library = "libopenblas.so.0";
+
+    public string Name => "native OpenBLAS (libopenblas.so.0: dsyevd, dgemm)";
+
+    [DllImport(Library, EntryPoint = "dsyevd_")]
+    private static extern void Dsyevd(byte* jobz, byte* uplo, int* n, double* a, int* lda, double* w,
+        double* work, int* lwork, int* iwork, int* liwork, int* info, nint jobzLength, nint uploLength);
+
+    [DllImport(Library, EntryPoint = "dgemm_")]
+    private static extern void Dgemm(byte* transa, byte* transb, int* m, int* n, int* k, double* alpha,
+        double* a, int* lda, double* b, int* ldb, double* beta, double* c, int* ldc, nint transaLength, nint transbLength);
+
+    /// <summary>Returns the backend when the library loads and answers a 2 x 2 problem correctly, otherwise null.</summary>
+    public static OpenBlasBackend? TryLoad()
+    {
+        try
+        {
+            var backend = new OpenBlasBackend();
+            var a = new[] { 2.0, 1.0, 1.0, 2.0 };
+            var w = new double[2];
+            backend.SymmetricEigen(2, a, w);
+            return Math.Abs(w[0] - 1.0) < 1e-12 && Math.Abs(w[1] - 3.0) < 1e-12 ? backend : null;
+        }
+        catch (Exception e) when (e is DllNotFoundException or EntryPointNotFoundException or BadImageFormatException or InvalidOperationException)
+        {
+            return null;
+        }
+    }
+
+    public void SymmetricEigen(int n, double[] matrix, double[] eigenvalues)
+    {
+        byte jobz = (byte)'V', uplo = (byte)'L';
+        int lda = n, info = 0, lwork = -1, liwork = -1, iworkQuery = 0;
+        double workQuery = 0;
+        fixed (double* a = matrix, w = eigenvalues)
+        {
+            Dsyevd(&jobz, &uplo, &n, a, &lda, w, &workQuery, &lwork, &iworkQuery, &liwork, &info, 1, 1);
+            if (info != 0) throw new InvalidOperationException($"dsyevd workspace query failed (info {info})");
+            lwork = (int)workQuery;
+            liwork = iworkQuery;
+            var work = new double[lwork];
+            var iwork = new int[liwork];
+            fixed (double* pw = work)
+            fixed (int* piw = iwork)
+                Dsyevd(&jobz, &uplo, &n, a, &lda, w, pw, &lwork, piw, &liwork, &info, 1, 1);
+        }
+        if (info != 0) throw new InvalidOperationException($"dsyevd failed to converge (info {info}) on a {n} x {n} block");
+    }
+
+    public void MultiplyTransposedA(int m, int n, int k, double[] a, double[] b, double[] c)
+    {
+        byte ta = (byte)'T', tb = (byte)'N';
+        double alpha = 1.0, beta = 0.0;
+        int lda = k, ldb = k, ldc = m;
+        fixed (double* pa = a, pb = b, pc = c)
+            Dgemm(&ta, &tb, &m, &n, &k, &alpha, pa, &lda, pb, &ldb, &beta, pc, &ldc, 1, 1);
+    }
+}
