@@ -1,0 +1,17 @@
+namespace SpinSim.Formats.SpinSystems;
+
+/// <summary>Reads a spin system from a .toml or .json file, chosen by extension.</summary>
+public static class SpinSystemFiles
+{
+    public static SpinSystemDocument Read(string path)
+    {
+        if (!File.Exists(path))
+            throw new SpinSystemFileException(path, null, "file not found", "Check the path; example systems are in spin-systems/");
+        return Path.GetExtension(path).ToLowerInvariant() switch
+        {
+            ".json" => SpinSystemJson.Read(path),
+            ".toml" => SpinSystemToml.Read(path),
+            var ext => throw new SpinSystemFileException(path, null, $"unknown spin-system file type \"{ext}\"", "Use a .toml file (SpinSim's schema) or a .json file"),
+        };
+    }
+}

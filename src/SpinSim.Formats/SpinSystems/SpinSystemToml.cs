@@ -1,0 +1,277 @@
+using System.Globalization;
+using System.Text;
+using SpinSim.Core.Model;
+using SpinSim.Core.Units;
+using Tomlyn.Parsing;
+using Tomlyn.Syntax;
+
+namespace SpinSim.Formats.SpinSystems;
+
+/// <summary>
+/// Reads and writes SpinSim's own TOML schema for spin systems:
+/// <code>
+/// title = "..."                 # optional
+/// field_mhz = 400               # or field_tesla = 9.4
+/// linewidth_hz = 0.8            # optional default FWHM
+/// [[nucleus]]                   # one entry per nucleus or set of equivalent nuclei
+/// id = "Me"; shift_ppm = 1.2; count = 3; isotope = "1H"; linewidth_hz = 0.9
+/// [[coupling]]
+/// between = ["Me", "CH2"]; j_hz = 7.1
+/// </code>
+/// Unknown keys are errors (a typo must not load as a silently different system).
+/// </summary>
+public static class SpinSystemToml
+{
+    private static readonly string[] TopKeys = ["title", "field_mhz", "field_tesla", "linewidth_hz", "observe"];
+    private static readonly string[] NucleusKeys = ["id", "shift_ppm", "count", "isotope", "linewidth_hz"];
+    private static readonly string[] CouplingKeys = ["between", "j_hz"];
+
+    public static SpinSystemDocument Read(string path)
+    {
+        string text;
+        try { text = File.ReadAllText(path); }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new SpinSystemFileException(path, null, $"cannot read the file ({e.Message})", "Check the path and the file's permissions");
+        }
+        return Parse(text, path);
+    }
+
+    public static SpinSystemDocument Parse(string text, string path)
+    {
+        if (string.IsNullOrWhiteSpace(text))
+            throw new SpinSystemFileException(path, null, "the file is empty", "Write at least field_mhz and one [[nucleus]] table; see spin-systems/ for examples");
+        var doc = SyntaxParser.Parse(text, path, true);
+        if (doc.HasErrors)
+        {
+            var first = doc.Diagnostics.First(d => d.Kind == DiagnosticMessageKind.Error);
+            throw new SpinSystemFileException(path, first.Span.Start.Line + 1, $"not valid TOML: {first.Message}",
+                "Fix the syntax at that line (strings in double quotes, one key = value per line, tables as [[nucleus]])");
+        }
+
+        var fieldLine = 0;
+        double? fieldMHz = null;
+        string title = "";
+        WidthHz? defaultWidth = null;
+        Isotope observed = Isotope.H1;
+        foreach (var kv in doc.KeyValues)
+        {
+            var (key, line) = (KeyOf(kv.Key!), Line(kv));
+            switch (key)
+            {
+                case "title": title = String(path, kv); break;
+                case "field_mhz": fieldMHz = Number(path, kv); fieldLine = line; break;
+                case "field_tesla":
+                    var tesla = Number(path, kv);
+                    fieldMHz = FieldMHz.FromTesla(tesla).Value; fieldLine = line;
+                    break;
+                case "linewidth_hz": defaultWidth = Width(path, kv); break;
+                case "observe": observed = IsotopeOf(path, kv); break;
+                default: throw UnknownKey(path, line, key, TopKeys, "at the top of the file");
+            }
+        }
+        if (doc.KeyValues.Any(kv => KeyOf(kv.Key!) == "field_mhz") && doc.KeyValues.Any(kv => KeyOf(kv.Key!) == "field_tesla"))
+            throw new SpinSystemFileException(path, fieldLine, "both field_mhz and field_tesla are given", "Keep one of them");
+        if (fieldMHz is null)
+            throw new SpinSystemFileException(path, 1, "the spectrometer field is missing", "Add field_mhz = 400 (the 1H frequency in MHz) or field_tesla = 9.4 at the top of the file");
+
+        var nuclei = new List<Nucleus>();
+        var nucleusLines = new List<int>();
+        var couplings = new List<Coupling>();
+        var couplingLines = new List<int>();
+        var fitEntries = new List<FitEntry>();
+        foreach (var table in doc.Tables)
+        {
+            var name = KeyOf(table.Name!);
+            var line = table.Span.Start.Line + 1;
+            var isArray = table is TableArraySyntax;
+            if (name == "nucleus" && isArray) { nuclei.Add(ReadNucleus(path, table, line)); nucleusLines.Add(line); }
+            else if (name == "coupling" && isArray) { couplings.Add(ReadCoupling(path, table, line)); couplingLines.Add(line); }
+            else if (name == "fit" || name.StartsWith("fit.", StringComparison.Ordinal))
+                foreach (var kv in table.Items) fitEntries.Add(new FitEntry(name, KeyOf(kv.Key!), Value(path, kv.Value!, Line(kv)), Line(kv)));
+            else if (name is "nucleus" or "coupling")
+                throw new SpinSystemFileException(path, line, $"[{name}] must be written [[{name}]] (one double-bracket table per {name})", $"Write [[{name}]]");
+            else
+                throw new SpinSystemFileException(path, line, $"unknown table [{name}]", "Use [[nucleus]], [[coupling]] or [fit]");
+        }
+        if (nuclei.Count == 0)
+            throw new SpinSystemFileException(path, null, "no nuclei are defined", "Add at least one [[nucleus]] table with id and shift_ppm");
+
+        var problems = SpinSystemRules.Check(new FieldMHz(fieldMHz.Value), nuclei, couplings);
+        if (problems.Count > 0)
+        {
+            var p = problems[0];
+            var line = p.Site switch { ProblemSite.Field => fieldLine, ProblemSite.Nucleus => nucleusLines[p.Index], _ => couplingLines[p.Index] };
+            throw new SpinSystemFileException(path, line, p.Message + (problems.Count > 1 ? $" (and {problems.Count - 1} more problem(s))" : ""), p.Fix);
+        }
+        var system = SpinSystem.Create(new FieldMHz(fieldMHz.Value), nuclei, couplings, title, observed);
+        return new SpinSystemDocument(path, system, defaultWidth, SpinSystemRules.Warnings(system),
+            fitEntries.Count > 0 ? new FitSection(fitEntries) : null);
+    }
+
+    private static Nucleus ReadNucleus(string path, TableSyntaxBase table, int tableLine)
+    {
+        string? id = null;
+        double? shift = null;
+        var count = 1;
+        var isotope = Isotope.H1;
+        WidthHz? width = null;
+        foreach (var kv in table.Items)
+        {
+            var key = KeyOf(kv.Key!);
+            switch (key)
+            {
+                case "id": id = String(path, kv); break;
+                case "shift_ppm": shift = Number(path, kv); break;
+                case "count":
+                    if (kv.Value is not IntegerValueSyntax integer)
+                        throw new SpinSystemFileException(path, Line(kv), "count must be a whole number", "Write count = 3 for a methyl");
+                    if (integer.Value < 1)
+                        throw new SpinSystemFileException(path, Line(kv), $"count is {integer.Value}, must be at least 1",
+                            "Use count = 1 for a single nucleus, 2 or more for a set of magnetically equivalent nuclei");
+                    if (integer.Value > 64)
+                        throw new SpinSystemFileException(path, Line(kv), $"count is {integer.Value}; sets of more than 64 equivalent nuclei are not supported",
+                            "Check the value; a tert-butyl group has count = 9");
+                    count = (int)integer.Value;
+                    break;
+                case "isotope": isotope = IsotopeOf(path, kv); break;
+                case "linewidth_hz": width = Width(path, kv); break;
+                default: throw UnknownKey(path, Line(kv), key, NucleusKeys, "in [[nucleus]]");
+            }
+        }
+        if (id is null) throw new SpinSystemFileException(path, tableLine, "this [[nucleus]] has no id", "Add id = \"H1\" (any short unique name)");
+        if (shift is null) throw new SpinSystemFileException(path, tableLine, $"nucleus \"{id}\" has no shift_ppm", "Add shift_ppm = 7.26 (the chemical shift in ppm)");
+        return new Nucleus(id, new ShiftPpm(shift.Value), count, isotope, width);
+    }
+
+    private static Coupling ReadCoupling(string path, TableSyntaxBase table, int tableLine)
+    {
+        string[]? between = null;
+        double? j = null;
+        foreach (var kv in table.Items)
+        {
+            var key = KeyOf(kv.Key!);
+            switch (key)
+            {
+                case "between":
+                    if (kv.Value is not ArraySyntax array || array.Items.ChildrenCount != 2 ||
+                        array.Items.Any(i => i.Value is not StringValueSyntax))
+                        throw new SpinSystemFileException(path, Line(kv), "between must list exactly two nucleus ids",
+                            "Write between = [\"H1\", \"H2\"]");
+                    between = array.Items.Select(i => ((StringValueSyntax)i.Value!).Value!).ToArray();
+                    break;
+                case "j_hz": j = Number(path, kv); break;
+                default: throw UnknownKey(path, Line(kv), key, CouplingKeys, "in [[coupling]]");
+            }
+        }
+        if (between is null) throw new SpinSystemFileException(path, tableLine, "this [[coupling]] does not say which nuclei it joins", "Add between = [\"H1\", \"H2\"]");
+        if (j is null) throw new SpinSystemFileException(path, tableLine, $"coupling {between[0]}-{between[1]} has no j_hz", "Add j_hz = 7.5 (signed, in Hz)");
+        return new Coupling(between[0], between[1], new CouplingHz(j.Value));
+    }
+
+    private static int Line(SyntaxNodeBase node) => node.Span.Start.Line + 1;
+
+    private static string KeyOf(KeySyntax key)
+    {
+        var parts = new List<string> { Simple(key.Key!) };
+        foreach (var dot in key.DotKeys) parts.Add(Simple(dot.Key!));
+        return string.Join('.', parts);
+
+        static string Simple(BareKeyOrStringValueSyntax k) => k switch
+        {
+            BareKeySyntax bare => bare.Key!.Text ?? "",
+            StringValueSyntax s => s.Value ?? "",
+            _ => k.ToString()!,
+        };
+    }
+
+    private static double Number(string path, KeyValueSyntax kv)
+    {
+        double value = kv.Value switch
+        {
+            FloatValueSyntax f => f.Value,
+            IntegerValueSyntax i => i.Value,
+            _ => throw new SpinSystemFileException(path, Line(kv), $"{KeyOf(kv.Key!)} must be a number", $"Write {KeyOf(kv.Key!)} = 1.5 (no quotes)"),
+        };
+        if (!double.IsFinite(value))
+            throw new SpinSystemFileException(path, Line(kv), $"{KeyOf(kv.Key!)} is {value}, not a finite number", "Give an ordinary number; inf and nan are not allowed");
+        return value;
+    }
+
+    private static WidthHz Width(string path, KeyValueSyntax kv)
+    {
+        var w = Number(path, kv);
+        if (w <= 0) throw new SpinSystemFileException(path, Line(kv), $"linewidth_hz is {w}, must be above 0", "Give the full width at half maximum in Hz, for example 0.8");
+        return new WidthHz(w);
+    }
+
+    private static string String(string path, KeyValueSyntax kv) => kv.Value is StringValueSyntax s
+        ? s.Value ?? ""
+        : throw new SpinSystemFileException(path, Line(kv), $"{KeyOf(kv.Key!)} must be a text in double quotes", $"Write {KeyOf(kv.Key!)} = \"...\"");
+
+    private static Isotope IsotopeOf(string path, KeyValueSyntax kv)
+    {
+        var text = String(path, kv);
+        return Isotope.TryParse(text, out var iso) ? iso
+            : throw new SpinSystemFileException(path, Line(kv), $"unknown isotope \"{text}\"",
+                $"Use one of {string.Join(", ", Isotope.Known.Select(i => i.Symbol))}");
+    }
+
+    private static object Value(string path, ValueSyntax value, int line) => value switch
+    {
+        FloatValueSyntax f => f.Value,
+        IntegerValueSyntax i => (double)i.Value,
+        StringValueSyntax s => s.Value ?? "",
+        BooleanValueSyntax b => b.Value,
+        ArraySyntax a => a.Items.Select(i => Value(path, i.Value!, line)).ToArray(),
+        _ => throw new SpinSystemFileException(path, line, "unsupported value in [fit]", "Use numbers, strings, true/false or arrays of them"),
+    };
+
+    private static SpinSystemFileException UnknownKey(string path, int line, string key, string[] allowed, string where)
+    {
+        var hint = allowed.OrderBy(a => Distance(a, key)).First();
+        return new SpinSystemFileException(path, line, $"unknown key \"{key}\" {where}",
+            $"Did you mean \"{hint}\"? Allowed keys: {string.Join(", ", allowed)}");
+    }
+
+    private static int Distance(string a, string b)
+    {
+        var d = new int[a.Length + 1, b.Length + 1];
+        for (var i = 0; i <= a.Length; i++) d[i, 0] = i;
+        for (var j = 0; j <= b.Length; j++) d[0, j] = j;
+        for (var i = 1; i <= a.Length; i++)
+            for (var j = 1; j <= b.Length; j++)
+                d[i, j] = Math.Min(Math.Min(d[i - 1, j] + 1, d[i, j - 1] + 1), d[i - 1, j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1));
+        return d[a.Length, b.Length];
+    }
+
+    /// <summary>Writes a system in the same schema; the output reads back to an equal system.</summary>
+    public static string Write(SpinSystem system, WidthHz? defaultWidth = null, IEnumerable<string>? headerComments = null)
+    {
+        var inv = CultureInfo.InvariantCulture;
+        var sb = new StringBuilder();
+        foreach (var c in headerComments ?? []) sb.Append("# ").AppendLine(c);
+        if (!string.IsNullOrEmpty(system.Title)) sb.Append("title = ").AppendLine(Quote(system.Title));
+        sb.Append("field_mhz = ").AppendLine(system.Field.Value.ToString("R", inv));
+        if (system.Observed != Isotope.H1) sb.Append("observe = ").AppendLine(Quote(system.Observed.Symbol));
+        if (defaultWidth is { } w) sb.Append("linewidth_hz = ").AppendLine(w.Value.ToString("R", inv));
+        foreach (var n in system.Nuclei)
+        {
+            sb.AppendLine().AppendLine("[[nucleus]]");
+            sb.Append("id = ").AppendLine(Quote(n.Id));
+            sb.Append("shift_ppm = ").AppendLine(n.Shift.Value.ToString("R", inv));
+            if (n.Count != 1) sb.Append("count = ").AppendLine(n.Count.ToString(inv));
+            if (n.Isotope != Isotope.H1) sb.Append("isotope = ").AppendLine(Quote(n.Isotope.Symbol));
+            if (n.Width is { } nw) sb.Append("linewidth_hz = ").AppendLine(nw.Value.ToString("R", inv));
+        }
+        foreach (var c in system.Couplings)
+        {
+            sb.AppendLine().AppendLine("[[coupling]]");
+            sb.Append("between = [").Append(Quote(c.A)).Append(", ").Append(Quote(c.B)).AppendLine("]");
+            sb.Append("j_hz = ").AppendLine(c.J.Value.ToString("R", inv));
+        }
+        return sb.ToString();
+    }
+
+    private static string Quote(string s) => "\"" + s.Replace("\\", "\\\\").Replace("\"", "\\\"") + "\"";
+}

@@ -1,0 +1,95 @@
+using SpinSim.Cli;
+using SpinSim.Tests.Support;
+
+namespace SpinSim.Tests.Cli;
+
+public class CliTests
+{
+    internal static (int Code, string Out, string Err) Run(params string[] args)
+    {
+        var o = new StringWriter();
+        var e = new StringWriter();
+        var code = SpinSimCli.Run(args, o, e);
+        return (code, o.ToString(), e.ToString());
+    }
+
+    internal static string Example(string name) => Path.Combine(ReferenceData.RepositoryRoot, "spin-systems", name);
+
+    [Fact]
+    public void SimulateWritesTheLinesTableWithItsHeader()
+    {
+        var output = Path.Combine(Path.GetTempPath(), $"lines-{Guid.NewGuid():N}.csv");
+        var (code, _, err) = Run("simulate", Example("abx-stereocentre.toml"), "--lines", output);
+        Assert.True(code == 0, err);
+        var lines = File.ReadAllLines(output);
+        Assert.StartsWith("frequency_hz,shift_ppm,intensity", lines[0]);
+        // ABX: 3 observed protons, total intensity N 2^(N-1) = 12.
+        var total = lines.Skip(1).Sum(l => double.Parse(l.Split(',')[2], System.Globalization.CultureInfo.InvariantCulture));
+        Assert.Equal(12.0, total, 6);
+        File.Delete(output);
+    }
+
+    [Fact]
+    public void FieldOptionOverridesTheFile()
+    {
+        var output = Path.Combine(Path.GetTempPath(), $"lines-{Guid.NewGuid():N}.csv");
+        Assert.Equal(0, Run("simulate", Example("isopropyl.toml"), "--field", "600", "--lines", output).Code);
+        var first = File.ReadAllLines(output)[1].Split(',');
+        var hz = double.Parse(first[0], System.Globalization.CultureInfo.InvariantCulture);
+        var ppm = double.Parse(first[1], System.Globalization.CultureInfo.InvariantCulture);
+        Assert.Equal(600.0, hz / ppm, 4);
+        File.Delete(output);
+    }
+
+    [Fact]
+    public void CheckJsonPrintsTheMachineForm()
+    {
+        var (code, o, _) = Run("check", Example("vinyl.toml"), "--json");
+        Assert.Equal(0, code);
+        Assert.Contains("\"field_mhz\": 60", o);
+        var path = Path.Combine(Path.GetTempPath(), $"sys-{Guid.NewGuid():N}.json");
+        File.WriteAllText(path, o);
+        Assert.Equal(0, Run("simulate", path).Code);
+        File.Delete(path);
+    }
+
+    [Fact]
+    public void CheckReportsCost()
+    {
+        var (code, o, _) = Run("check", Example("para-ring-aabb.toml"));
+        Assert.Equal(0, code);
+        Assert.Contains("largest block 6 states", o);
+    }
+
+    [Fact]
+    public void BadInputIsExitCodeOneWithTheFileName()
+    {
+        var path = Path.Combine(Path.GetTempPath(), $"bad-{Guid.NewGuid():N}.toml");
+        File.WriteAllText(path, "field_mhz = 400\n[[nucleus]]\nid = \"A\"\n");
+        var (code, _, err) = Run("simulate", path);
+        Assert.Equal(1, code);
+        Assert.Contains(path + ":2:", err);
+        Assert.Contains("shift_ppm", err);
+        File.Delete(path);
+    }
+
+    [Fact]
+    public void UsageErrorIsExitCodeTwo()
+    {
+        Assert.Equal(2, Run("simulate").Code);
+        Assert.Equal(2, Run("simulate", Example("vinyl.toml"), "--no-such-option").Code);
+    }
+
+    [Fact]
+    public void OutputNeverOverwritesTheInput()
+    {
+        var copy = Path.Combine(Path.GetTempPath(), $"in-{Guid.NewGuid():N}.toml");
+        File.Copy(Example("vinyl.toml"), copy);
+        var before = File.ReadAllText(copy);
+        var (code, _, err) = Run("simulate", copy, "--lines", copy);
+        Assert.Equal(1, code);
+        Assert.Contains("overwrite", err);
+        Assert.Equal(before, File.ReadAllText(copy));
+        File.Delete(copy);
+    }
+}
