@@ -1,27 +1,59 @@
 namespace SpinSim.Core.Engine;
 
-/// <summary>
-/// One observed transition. <see cref="Origin"/> has one weight per nucleus entry of the system (zero for
-/// unobserved ones) saying how much of the spin flip happens on that entry: the change of its expected Iz
-/// between the two eigenstates, clipped at zero and normalised to sum 1.
-/// </summary>
-public sealed record Line(double FrequencyHz, double ShiftPpm, double Intensity, double[] Origin)
-{
-    /// <summary>Indices of entries that carry at least <paramref name="share"/> of the flip, largest first.</summary>
-    public IEnumerable<int> DominantEntries(double share = 0.25) =>
-        Origin.Select((w, i) => (w, i)).Where(t => t.w >= share).OrderByDescending(t => t.w).Select(t => t.i);
-}
+/// <summary>One observed transition: frequency relative to 0 ppm of the observed nucleus, and intensity.</summary>
+public readonly record struct Line(double FrequencyHz, double ShiftPpm, double Intensity);
 
-/// <summary>The result of the engine: the observed lines and what it cost to get them.</summary>
-public sealed record LineList(
-    IReadOnlyList<Line> Lines,
-    double ObserveMHz,
-    double ExpectedTotalIntensity,
-    double DroppedIntensity,
-    int LargestBlock,
-    int Blocks,
-    string Backend,
-    IReadOnlyList<string> Notes)
+/// <summary>
+/// The result of the engine: the observed lines, sorted by frequency, and what it cost to get them. For every line the
+/// list also holds its origin: one weight per nucleus entry of the system (zero for unobserved entries) saying how much
+/// of the spin flip happens on that entry, i.e. the change of its expected Iz between the two eigenstates, clipped at
+/// zero and normalised to sum 1.
+/// </summary>
+public sealed class LineList
 {
-    public double TotalIntensity => Lines.Sum(l => l.Intensity);
+    private readonly double[] _origin;
+
+    public LineList(Line[] lines, double[] originWeights, int entryCount, double observeMHz, double expectedTotalIntensity,
+        int largestBlock, int blocks, string backend, IReadOnlyList<string> notes)
+    {
+        if (originWeights.Length != lines.Length * entryCount)
+            throw new ArgumentException("origin weights must hold one row of entryCount weights per line", nameof(originWeights));
+        Lines = lines;
+        _origin = originWeights;
+        EntryCount = entryCount;
+        ObserveMHz = observeMHz;
+        ExpectedTotalIntensity = expectedTotalIntensity;
+        LargestBlock = largestBlock;
+        Blocks = blocks;
+        Backend = backend;
+        Notes = notes;
+        TotalIntensity = lines.Sum(l => l.Intensity);
+    }
+
+    public IReadOnlyList<Line> Lines { get; }
+    public int EntryCount { get; }
+    public double ObserveMHz { get; }
+
+    /// <summary>Tr(F+ F-): what the intensities sum to before any line is dropped.</summary>
+    public double ExpectedTotalIntensity { get; }
+
+    public double TotalIntensity { get; }
+
+    /// <summary>Intensity of lines below the engine's floor, which were not kept.</summary>
+    public double DroppedIntensity => Math.Max(0, ExpectedTotalIntensity - TotalIntensity);
+
+    public int LargestBlock { get; }
+    public int Blocks { get; }
+    public string Backend { get; }
+    public IReadOnlyList<string> Notes { get; }
+
+    /// <summary>Origin weights of line <paramref name="line"/>, one per entry, summing to 1.</summary>
+    public ReadOnlySpan<double> OriginOf(int line) => _origin.AsSpan(line * EntryCount, EntryCount);
+
+    /// <summary>Entries that carry at least <paramref name="share"/> of the flip of line <paramref name="line"/>, largest first.</summary>
+    public IReadOnlyList<int> DominantEntries(int line, double share = 0.25)
+    {
+        var origin = OriginOf(line).ToArray();
+        return Enumerable.Range(0, EntryCount).Where(e => origin[e] >= share).OrderByDescending(e => origin[e]).ToArray();
+    }
 }

@@ -21,7 +21,7 @@ public static class SpectrumEngine
         var expectedTotal = ExpectedTotalIntensity(system);
         var floor = options.RelativeIntensityFloor * expectedTotal;
 
-        var raw = new List<RawLine>();
+        var raw = new List<RawLines>();
         var largest = 0;
         var blocks = 0;
         foreach (var combination in Combinations(system))
@@ -33,9 +33,8 @@ public static class SpectrumEngine
             raw.AddRange(solver.Solve(combination.Weight, floor, cancel));
         }
 
-        var lines = Merge(raw, options.MergeToleranceHz, observeMHz);
-        var dropped = Math.Max(0, expectedTotal - lines.Sum(l => l.Intensity));
-        return new LineList(lines, observeMHz, expectedTotal, dropped, largest, blocks, backend.Name, []);
+        var (lines, origin) = Merge(raw, system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
+        return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, []);
     }
 
     /// <summary>Tr(F+ F-) = N 2^(N-1) for N observed spin-1/2 nuclei, times 2^M for M unobserved ones.</summary>
@@ -82,28 +81,47 @@ public static class SpectrumEngine
         }
     }
 
-    internal static List<Line> Merge(List<RawLine> raw, double toleranceHz, double observeMHz)
+    /// <summary>Sorts all raw lines by frequency and merges runs closer than <paramref name="toleranceHz"/> into one line
+    /// at their intensity-weighted mean frequency, with intensity-weighted origin.</summary>
+    internal static (Line[] Lines, double[] Origin) Merge(IReadOnlyList<RawLines> chunks, int entryCount, double toleranceHz, double observeMHz)
     {
-        raw.Sort((a, b) => a.FrequencyHz.CompareTo(b.FrequencyHz));
-        var merged = new List<Line>();
-        var i = 0;
-        while (i < raw.Count)
+        var count = chunks.Sum(c => c.Count);
+        var frequency = new double[count];
+        var chunkOf = new int[count];
+        var indexIn = new int[count];
+        var at = 0;
+        for (var c = 0; c < chunks.Count; c++)
         {
-            var start = i;
+            chunks[c].FrequencyHz.CopyTo(frequency, at);
+            for (var k = 0; k < chunks[c].Count; k++) { chunkOf[at + k] = c; indexIn[at + k] = k; }
+            at += chunks[c].Count;
+        }
+        var order = Enumerable.Range(0, count).ToArray();
+        Array.Sort(frequency, order);
+
+        var lines = new List<Line>();
+        var origin = new List<double>();
+        var row = new double[entryCount];
+        var i = 0;
+        while (i < count)
+        {
             double sumI = 0, sumF = 0;
-            var origin = new double[raw[i].Origin.Length];
+            Array.Clear(row);
+            var first = i;
             do
             {
-                var r = raw[i];
-                sumI += r.Intensity;
-                sumF += r.Intensity * r.FrequencyHz;
-                for (var e = 0; e < origin.Length; e++) origin[e] += r.Intensity * r.Origin[e];
+                var chunk = chunks[chunkOf[order[i]]];
+                var k = indexIn[order[i]];
+                var intensity = chunk.Intensity[k];
+                sumI += intensity;
+                sumF += intensity * frequency[i];
+                chunk.AddOrigin(k, intensity, row);
                 i++;
-            } while (i < raw.Count && raw[i].FrequencyHz - raw[i - 1].FrequencyHz <= toleranceHz);
-            for (var e = 0; e < origin.Length; e++) origin[e] /= sumI;
-            var f = i - start == 1 ? raw[start].FrequencyHz : sumF / sumI;
-            merged.Add(new Line(f, f / observeMHz, sumI, origin));
+            } while (i < count && frequency[i] - frequency[i - 1] <= toleranceHz);
+            var f = i - first == 1 ? frequency[first] : sumF / sumI;
+            lines.Add(new Line(f, f / observeMHz, sumI));
+            foreach (var w in row) origin.Add(w / sumI);
         }
-        return merged;
+        return (lines.ToArray(), origin.ToArray());
     }
 }

@@ -7,8 +7,33 @@ namespace SpinSim.Core.Engine;
 /// <param name="IsotopeGroup">Particles with equal groups are homonuclear (full I.I coupling, shared M block label).</param>
 internal readonly record struct Particle(int Entry, int TwiceF, int IsotopeGroup, double FrequencyHz, bool Observed);
 
-/// <summary>A raw line before merging: frequency, weighted intensity and the origin weights per entry.</summary>
-internal readonly record struct RawLine(double FrequencyHz, double Intensity, double[] Origin);
+/// <summary>
+/// Lines of one block pair before merging, in flat arrays. The origin of line k is not stored but derived on demand
+/// from the expected Fz of its two eigenstates (<see cref="AddOrigin"/>), which keeps millions of lines cheap.
+/// </summary>
+internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[] izLower)
+{
+    public readonly List<double> FrequencyHz = [];
+    public readonly List<double> Intensity = [];
+    public readonly List<long> States = []; // upper << 32 | lower
+
+    public int Count => FrequencyHz.Count;
+
+    /// <summary>Adds <paramref name="scale"/> x the origin weights of line <paramref name="k"/> to <paramref name="row"/> (one slot per entry).</summary>
+    public void AddOrigin(int k, double scale, Span<double> row)
+    {
+        var a = (int)(States[k] >> 32);
+        var b = (int)(States[k] & 0xffffffff);
+        var count = observedEntries.Length;
+        var total = 0.0;
+        for (var i = 0; i < count; i++) total += Math.Max(0, izUpper[a * count + i] - izLower[b * count + i]);
+        for (var i = 0; i < count; i++)
+        {
+            var share = total > 0 ? Math.Max(0, izUpper[a * count + i] - izLower[b * count + i]) / total : 1.0 / count;
+            row[observedEntries[i]] += scale * share;
+        }
+    }
+}
 
 /// <summary>
 /// Diagonalises the secular Hamiltonian H = sum nu_p Fz_p + sum J_pq (F_p . F_q) [homonuclear] or J_pq Fz_p Fz_q
@@ -47,7 +72,7 @@ internal sealed class SubspectrumSolver
     /// <summary>Sizes of the blocks this solver will diagonalise, without building them.</summary>
     public IReadOnlyList<int> BlockSizes() => Partition().Blocks.Select(b => b.Length).ToArray();
 
-    public List<RawLine> Solve(double weight, double intensityFloor, CancellationToken cancel)
+    public RawLines[] Solve(double weight, double intensityFloor, CancellationToken cancel)
     {
         var (blocks, keyOf, lowerKeyStep) = Partition();
         var blockIndexOfKey = new Dictionary<long, int>();
@@ -80,13 +105,17 @@ internal sealed class SubspectrumSolver
             energies[b] = w;
         });
 
-        var results = new List<RawLine>[pairs.Count];
+        var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
+        var iz = new double[blocks.Count][];
+        Parallel.ForEach(order, new ParallelOptions { CancellationToken = cancel }, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
+
+        var results = new RawLines[pairs.Count];
         Parallel.For(0, pairs.Count, new ParallelOptions { CancellationToken = cancel }, k =>
         {
             var (u, l) = pairs[k];
-            results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], local, weight, intensityFloor);
+            results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed, weight, intensityFloor);
         });
-        return results.SelectMany(r => r).ToList();
+        return results;
     }
 
     private (List<int[]> Blocks, long[] KeyOf, long LowerKeyStep) Partition()
@@ -168,11 +197,10 @@ internal sealed class SubspectrumSolver
         return h;
     }
 
-    private List<RawLine> Transitions(int[] upperCodes, int[] lowerCodes, double[] vUpper, double[] vLower,
-        double[] eUpper, double[] eLower, int[] local, double weight, double intensityFloor)
+    private RawLines Transitions(int[] upperCodes, int[] lowerCodes, double[] vUpper, double[] vLower,
+        double[] eUpper, double[] eLower, double[] izUpper, double[] izLower, int[] local, int[] observed, double weight, double intensityFloor)
     {
         int nu = upperCodes.Length, nl = lowerCodes.Length;
-        var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
 
         // X = F- V_upper, built column by column from the sparse F- (at most one target per particle).
         var entries = new List<(int Row, int Col, double Value)>();
@@ -198,16 +226,16 @@ internal sealed class SubspectrumSolver
         var t = new double[(long)nl * nu];
         _backend.MultiplyTransposedA(nl, nu, nl, vLower, x, t);
 
-        var izUpper = ExpectedIz(upperCodes, vUpper, observed);
-        var izLower = ExpectedIz(lowerCodes, vLower, observed);
-        var lines = new List<RawLine>();
+        var lines = new RawLines(observed.Select(p => _particles[p].Entry).ToArray(), izUpper, izLower);
         for (var a = 0; a < nu; a++)
             for (var b = 0; b < nl; b++)
             {
                 var amplitude = t[b + (long)a * nl];
                 var intensity = weight * amplitude * amplitude;
                 if (intensity <= intensityFloor) continue;
-                lines.Add(new RawLine(eUpper[a] - eLower[b], intensity, Origin(izUpper, a, izLower, b, observed)));
+                lines.FrequencyHz.Add(eUpper[a] - eLower[b]);
+                lines.Intensity.Add(intensity);
+                lines.States.Add(((long)a << 32) | (uint)b);
             }
         return lines;
     }
@@ -216,32 +244,20 @@ internal sealed class SubspectrumSolver
     private double[] ExpectedIz(int[] codes, double[] v, int[] observed)
     {
         var n = codes.Length;
-        var result = new double[n * observed.Length];
+        var count = observed.Length;
+        var m = new double[n * count];
+        for (var i = 0; i < n; i++)
+            for (var k = 0; k < count; k++) m[i * count + k] = M(codes[i], observed[k]);
+        var result = new double[n * count];
         for (var a = 0; a < n; a++)
+        {
+            var column = (long)a * n;
             for (var i = 0; i < n; i++)
             {
-                var c2 = v[i + (long)a * n] * v[i + (long)a * n];
-                for (var k = 0; k < observed.Length; k++) result[a * observed.Length + k] += c2 * M(codes[i], observed[k]);
+                var c2 = v[column + i] * v[column + i];
+                for (var k = 0; k < count; k++) result[a * count + k] += c2 * m[i * count + k];
             }
+        }
         return result;
-    }
-
-    private double[] Origin(double[] izUpper, int a, double[] izLower, int b, int[] observed)
-    {
-        var origin = new double[_entryCount];
-        var total = 0.0;
-        for (var k = 0; k < observed.Length; k++)
-        {
-            var change = Math.Max(0, izUpper[a * observed.Length + k] - izLower[b * observed.Length + k]);
-            origin[_particles[observed[k]].Entry] += change;
-            total += change;
-        }
-        if (total <= 0)
-        {
-            foreach (var p in observed) origin[_particles[p].Entry] = 1.0 / observed.Length;
-            return origin;
-        }
-        for (var e = 0; e < origin.Length; e++) origin[e] /= total;
-        return origin;
     }
 }

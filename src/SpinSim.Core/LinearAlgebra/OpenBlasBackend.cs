@@ -17,6 +17,9 @@ public sealed unsafe class OpenBlasBackend : IDenseBackend
     private static extern void Dsyevd(byte* jobz, byte* uplo, int* n, double* a, int* lda, double* w,
         double* work, int* lwork, int* iwork, int* liwork, int* info, nint jobzLength, nint uploLength);
 
+    [DllImport(Library, EntryPoint = "openblas_set_num_threads")]
+    private static extern void SetThreadCount(int count);
+
     [DllImport(Library, EntryPoint = "dgemm_")]
     private static extern void Dgemm(byte* transa, byte* transb, int* m, int* n, int* k, double* alpha,
         double* a, int* lda, double* b, int* ldb, double* beta, double* c, int* ldc, nint transaLength, nint transbLength);
@@ -26,6 +29,8 @@ public sealed unsafe class OpenBlasBackend : IDenseBackend
     {
         try
         {
+            // SpinSim runs blocks in parallel itself; OpenBLAS's own threads would only compete with them.
+            SetThreadCount(1);
             var backend = new OpenBlasBackend();
             var a = new[] { 2.0, 1.0, 1.0, 2.0 };
             var w = new double[2];
@@ -38,8 +43,12 @@ public sealed unsafe class OpenBlasBackend : IDenseBackend
         }
     }
 
+    /// <summary>Below this size the managed solver is faster than the call overhead of LAPACK.</summary>
+    private const int SmallBlock = 32;
+
     public void SymmetricEigen(int n, double[] matrix, double[] eigenvalues)
     {
+        if (n <= SmallBlock) { ManagedBackend.Instance.SymmetricEigen(n, matrix, eigenvalues); return; }
         byte jobz = (byte)'V', uplo = (byte)'L';
         int lda = n, info = 0, lwork = -1, liwork = -1, iworkQuery = 0;
         double workQuery = 0;
@@ -60,6 +69,7 @@ public sealed unsafe class OpenBlasBackend : IDenseBackend
 
     public void MultiplyTransposedA(int m, int n, int k, double[] a, double[] b, double[] c)
     {
+        if ((long)m * n * k <= SmallBlock * SmallBlock * SmallBlock) { ManagedBackend.Instance.MultiplyTransposedA(m, n, k, a, b, c); return; }
         byte ta = (byte)'T', tb = (byte)'N';
         double alpha = 1.0, beta = 0.0;
         int lda = k, ldb = k, ldc = m;

@@ -16,9 +16,10 @@ public static class LineListCsv
     {
         var inv = CultureInfo.InvariantCulture;
         writer.WriteLine(Header);
-        foreach (var l in lines.Lines)
+        for (var i = 0; i < lines.Lines.Count; i++)
         {
-            var origin = string.Join('+', l.DominantEntries().Select(i => system.Nuclei[i].Id));
+            var l = lines.Lines[i];
+            var origin = string.Join('+', lines.DominantEntries(i).Select(e => system.Nuclei[e].Id));
             writer.Write(l.FrequencyHz.ToString("F6", inv));
             writer.Write(',');
             writer.Write(l.ShiftPpm.ToString("F8", inv));

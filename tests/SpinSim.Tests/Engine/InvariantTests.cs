@@ -119,11 +119,12 @@ public class InvariantTests
     public void OriginWeightsNameTheFlippingNucleus()
     {
         var system = SpinSystem.Create(new FieldMHz(400), [new("A", 7.0), new("X", 2.0)], [new("A", "X", 7.0)]);
-        foreach (var line in SpectrumEngine.Compute(system).Lines)
+        var result = SpectrumEngine.Compute(system);
+        for (var i = 0; i < result.Lines.Count; i++)
         {
-            var expected = line.ShiftPpm > 4 ? 0 : 1;
-            Assert.Equal(expected, line.DominantEntries().First());
-            Assert.Equal(1.0, line.Origin.Sum(), 12);
+            var expected = result.Lines[i].ShiftPpm > 4 ? 0 : 1;
+            Assert.Equal(expected, result.DominantEntries(i)[0]);
+            Assert.Equal(1.0, result.OriginOf(i).ToArray().Sum(), 12);
         }
     }
 
