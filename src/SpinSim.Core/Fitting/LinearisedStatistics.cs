@@ -1,3 +1,5 @@
+// Method: covariance and null space from the SVD pseudo-inverse, rank-deficient least squares as in G. H. Golub and C. F. Van Loan, Matrix Computations, 4th ed., Johns Hopkins 2013, sec. 5.5 (cited from memory).
+
 namespace SpinSim.Core.Fitting;
 
 /// <summary>

@@ -1,3 +1,5 @@
+// Method: Levenberg-Marquardt steps from the SVD of the scaled Jacobian, J. J. Moré, Lecture Notes in Mathematics 630, Springer 1978, pp. 105-116.
+
 using MathNet.Numerics.LinearAlgebra;
 
 namespace SpinSim.Core.Fitting;

@@ -94,6 +94,18 @@ public class LevenbergMarquardtTests
     }
 
     [Fact]
+    public void DifferencingInABoxNarrowerThanTheStepStaysInside()
+    {
+        var model = Line(analytic: false);
+        var options = new LeastSquaresOptions { LowerBounds = [double.NegativeInfinity, 1.5 - 1e-9], UpperBounds = [double.PositiveInfinity, 1.5] };
+        var result = LevenbergMarquardt.Minimise(model, [0, 1.5], options);
+        Assert.True(result.Converged, result.Message);
+        Assert.Equal(LineY.Average() - 1.5 * LineX.Average(), result.Parameters[0], 1e-7);
+        Assert.True(result.AtBound[1]);
+        Assert.All(model.Seen, p => Assert.InRange(p[1], 1.5 - 1e-9, 1.5));
+    }
+
+    [Fact]
     public void InactiveBoundsChangeNothing()
     {
         var free = LevenbergMarquardt.Minimise(Line(true), [0, 0]);
