@@ -44,7 +44,7 @@ public static class LevenbergMarquardt
         private readonly int _m, _n;
         private readonly double[] _lower, _upper;
 
-        private readonly double[] _x, _r, _xTrial, _rTrial, _scale, _jp;
+        private readonly double[] _x, _r, _xTrial, _rTrial, _scale;
         private readonly double[,] _jac;
         private bool _haveJacobian, _analyticJacobian;
         private double _rss;
@@ -70,7 +70,6 @@ public static class LevenbergMarquardt
             _xTrial = new double[_n];
             _rTrial = new double[_m];
             _scale = new double[_n];
-            _jp = new double[_m];
             _jac = new double[_m, _n];
         }
 
@@ -103,7 +102,7 @@ public static class LevenbergMarquardt
             {
                 var result = Iterate(unitScaling: restart == 2);
                 if (result.Reason != StopReason.NoProgress || restart == MaxRestarts || _iterations >= _o.MaxIterations)
-                    return restart == 0 ? result : result with { Message = $"{result.Message} (after {restart} restart(s) with fresh scaling)" };
+                    return restart == 0 ? result : result with { Message = $"{result.Message} (after {restart} restart(s) with other scalings)" };
             }
         }
 
@@ -116,7 +115,6 @@ public static class LevenbergMarquardt
             double radius = _o.InitialTrustRadiusFactor * (xnorm > 0 ? xnorm : 1);
             bool firstStep = true;
             var free = new List<int>(_n);
-            var gradient = new double[_n];
 
             while (true)
             {
@@ -127,7 +125,6 @@ public static class LevenbergMarquardt
                 {
                     double g = 0;
                     for (int i = 0; i < _m; i++) g += _jac[i, j] * _r[i];
-                    gradient[j] = g;
                     if ((_x[j] <= _lower[j] && g > 0) || (_x[j] >= _upper[j] && g < 0)) continue;
                     free.Add(j);
                     double cn = ColumnNorm(j);
@@ -166,7 +163,6 @@ public static class LevenbergMarquardt
                     {
                         double s = 0;
                         for (int j = 0; j < _n; j++) s += _jac[i, j] * (_xTrial[j] - _x[j]);
-                        _jp[i] = s;
                         jpNorm2 += s * s;
                         rjp += _r[i] * s;
                     }
