@@ -23,14 +23,21 @@ public static class ReferenceData
         return path;
     }
 
-    public static string RepositoryRoot { get; } = FindRepositoryRoot();
+    private static readonly Lazy<string> RootOfRepository = new(() => FindRepositoryRoot());
 
-    private static string FindRepositoryRoot()
+    public static string RepositoryRoot => RootOfRepository.Value;
+
+    // With --artifacts-path the binaries live outside the repository, so fall back to where this source file was compiled.
+    private static string FindRepositoryRoot([System.Runtime.CompilerServices.CallerFilePath] string sourceFile = "")
     {
-        var dir = new DirectoryInfo(AppContext.BaseDirectory);
-        while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "SpinSim.sln")))
-            dir = dir.Parent;
-        return dir?.FullName ?? throw new InvalidOperationException("SpinSim.sln not found above " + AppContext.BaseDirectory);
+        foreach (var start in new[] { AppContext.BaseDirectory, Path.GetDirectoryName(sourceFile) })
+        {
+            var dir = string.IsNullOrEmpty(start) ? null : new DirectoryInfo(start);
+            while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "SpinSim.sln")))
+                dir = dir.Parent;
+            if (dir is not null) return dir.FullName;
+        }
+        throw new InvalidOperationException("SpinSim.sln not found above " + AppContext.BaseDirectory + " nor above " + sourceFile);
     }
 
     private static string? Locate()
