@@ -25,13 +25,25 @@ public static class ReferenceData
 
     public static string RepositoryRoot { get; } = FindRepositoryRoot();
 
+    // Builds with --artifacts-path put the test binaries outside the repository, so the folder of
+    // this source file (recorded at compile time) is the second place to look.
     private static string FindRepositoryRoot()
     {
-        var dir = new DirectoryInfo(AppContext.BaseDirectory);
+        var start = ThisSourceFolder();
+        return SolutionAbove(AppContext.BaseDirectory) ?? SolutionAbove(start)
+            ?? throw new InvalidOperationException($"SpinSim.sln not found above {AppContext.BaseDirectory} or {start}");
+    }
+
+    private static string? SolutionAbove(string folder)
+    {
+        var dir = string.IsNullOrEmpty(folder) ? null : new DirectoryInfo(folder);
         while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "SpinSim.sln")))
             dir = dir.Parent;
-        return dir?.FullName ?? throw new InvalidOperationException("SpinSim.sln not found above " + AppContext.BaseDirectory);
+        return dir?.FullName;
     }
+
+    private static string ThisSourceFolder([System.Runtime.CompilerServices.CallerFilePath] string path = "") =>
+        Path.GetDirectoryName(path) ?? "";
 
     private static string? Locate()
     {
