@@ -24,8 +24,9 @@ public enum JcampForm
 /// instrument exports and the shared test files mostly use, so every reader that handles NMR handles
 /// it; a reader that ignores .SHIFT REFERENCE still gets ppm = Hz / MHz because 0 Hz is written at
 /// 0 ppm. A trace with no observe frequency cannot be put in Hz and is written in PPM.
-/// Ordinates are integers times YFACTOR, with YFACTOR chosen so the largest magnitude is 1e9:
-/// ten significant digits, within a 32-bit integer for readers that use one.
+/// Ordinates are integers times YFACTOR. YFACTOR is the power of ten that puts the largest magnitude
+/// between 2.1e8 and 2^31 - 1: nine to ten significant digits, within a 32-bit integer for readers
+/// that use one, and short values such as 2.5 stay exact.
 /// An axis that is not evenly spaced (to 0.1 % of a step) cannot be (X++(Y..Y)) and is written as
 /// ##XYPOINTS=(XY..XY) pairs.
 /// </remarks>
@@ -34,7 +35,7 @@ public static class JcampWriter
     /// <summary>The longest line written; the standard asks for at most 80 characters.</summary>
     public const int MaxLineLength = 80;
 
-    private const double LargestInteger = 1e9;
+    private const double LargestInteger = int.MaxValue;
     private static readonly CultureInfo Invariant = CultureInfo.InvariantCulture;
 
     /// <summary>Writes <paramref name="trace"/> to a file at <paramref name="path"/> (created or replaced).</summary>
@@ -196,7 +197,10 @@ public static class JcampWriter
     {
         var largest = 0.0;
         foreach (var v in intensity) largest = Math.Max(largest, Math.Abs(v));
-        var factor = largest / LargestInteger;
+        if (!(largest > 0)) return 1;
+        var factor = Math.Pow(10, Math.Ceiling(Math.Log10(largest / LargestInteger)));
+        // Log10 can land a hair below an exact power of ten; never let the largest integer overflow.
+        if (largest / factor > LargestInteger) factor *= 10;
         return double.IsNormal(factor) ? factor : 1;
     }
 
