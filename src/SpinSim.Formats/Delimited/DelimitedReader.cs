@@ -9,8 +9,11 @@ namespace SpinSim.Formats.Delimited;
 /// </summary>
 public static class DelimitedReader
 {
+    /// <summary>Reads the file at <paramref name="path"/>; options default to auto-detected columns 0 (x, ppm) and 1 (intensity).</summary>
+    /// <exception cref="SpectrumFileException">The file cannot be read or holds a defect.</exception>
     public static SpectrumTrace Read(string path, DelimitedOptions? options = null)
     {
+        ArgumentNullException.ThrowIfNull(path);
         string text;
         try
         {
@@ -23,6 +26,8 @@ public static class DelimitedReader
         return Parse(text, path, options);
     }
 
+    /// <summary>Reads delimited text; <paramref name="sourceName"/> names it in messages and in the trace's origin.</summary>
+    /// <exception cref="SpectrumFileException">The text holds a defect or the options cannot apply to it.</exception>
     public static SpectrumTrace Parse(string text, string sourceName, DelimitedOptions? options = null)
     {
         ArgumentNullException.ThrowIfNull(text);

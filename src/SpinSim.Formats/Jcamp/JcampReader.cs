@@ -27,6 +27,7 @@ public static class JcampReader
     /// <exception cref="SpectrumFileException">The file cannot be read or is not a usable JCAMP-DX spectrum.</exception>
     public static SpectrumTrace Read(string path)
     {
+        ArgumentNullException.ThrowIfNull(path);
         string text;
         try
         {
