@@ -1,0 +1,33 @@
+using SpinSim.Core.Traces;
+using SpinSim.Formats.Delimited;
+using SpinSim.Formats.Jcamp;
+
+namespace SpinSim.Formats;
+
+/// <summary>Reads a trace from any supported file, choosing the reader by extension.</summary>
+public static class SpectrumFiles
+{
+    public static IReadOnlyList<string> JcampExtensions { get; } = [".jdx", ".dx", ".jcamp"];
+
+    public static IReadOnlyList<string> DelimitedExtensions { get; } = [".csv", ".tsv", ".txt"];
+
+    /// <summary>
+    /// .jdx, .dx, .jcamp: JCAMP-DX; .csv, .tsv, .txt: delimited text read with <paramref name="options"/>
+    /// (for .tsv without options, tab-separated). Extensions compare case-insensitively.
+    /// </summary>
+    /// <exception cref="SpectrumFileException">Unknown extension, or the file cannot be read as a trace.</exception>
+    public static SpectrumTrace Read(string path, DelimitedOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(path);
+        var extension = Path.GetExtension(path).ToLowerInvariant();
+        if (JcampExtensions.Contains(extension))
+            return JcampReader.Read(path);
+        if (DelimitedExtensions.Contains(extension))
+        {
+            var o = options ?? (extension == ".tsv" ? new DelimitedOptions { Separator = ColumnSeparator.Tab } : new DelimitedOptions());
+            return DelimitedReader.Read(path, o);
+        }
+        throw new SpectrumFileException(path, null,
+            $"unknown file type '{extension}': expected JCAMP-DX ({string.Join(", ", JcampExtensions)}) or delimited text ({string.Join(", ", DelimitedExtensions)}); rename the file or convert it");
+    }
+}
