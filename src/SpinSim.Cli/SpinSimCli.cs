@@ -25,6 +25,7 @@ public static class SpinSimCli
         var io = new CommandIo(stdout, stderr, cancel);
         root.Subcommands.Add(CheckCommand.Build(io));
         root.Subcommands.Add(SimulateCommand.Build(io));
+        root.Subcommands.Add(InspectCommand.Build(io));
 
         var parse = root.Parse(args);
         if (parse.Errors.Count > 0)
@@ -50,7 +51,7 @@ public static class SpinSimCli
     }
 
     private static bool IsUserError(Exception e) => e is SpinSystemFileException or SpinSystemException or SystemTooLargeException
-        or OutputFileException or UserInputException;
+        or OutputFileException or UserInputException or SpinSim.Formats.SpectrumFileException;
 }
 
 /// <summary>Where commands write and how they are stopped.</summary>

@@ -25,8 +25,8 @@ public sealed record TraceSummary(
     [property: JsonPropertyName("y_max")] double YMax,
     [property: JsonPropertyName("warnings")] IReadOnlyList<string> Warnings)
 {
-    private static readonly JsonSerializerOptions Indented = new() { WriteIndented = true };
-    private static readonly JsonSerializerOptions Compact = new() { WriteIndented = false };
+    private static readonly JsonSerializerOptions Indented = new() { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
+    private static readonly JsonSerializerOptions Compact = new() { WriteIndented = false, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
 
     public static TraceSummary From(SpectrumTrace trace)
     {

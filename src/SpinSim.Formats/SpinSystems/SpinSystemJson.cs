@@ -31,7 +31,7 @@ public static class SpinSystemJson
         root["nuclei"] = nuclei;
         root["couplings"] = new JsonArray(system.Couplings
             .Select(c => (JsonNode)new JsonObject { ["a"] = c.A, ["b"] = c.B, ["j_hz"] = c.J.Value }).ToArray());
-        return root.ToJsonString(new JsonSerializerOptions { WriteIndented = true });
+        return root.ToJsonString(new JsonSerializerOptions { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
     }
 
     public static SpinSystemDocument Read(string path)

@@ -93,3 +93,46 @@ public class CliTests
         File.Delete(copy);
     }
 }
+
+public class InspectCliTests
+{
+    [ReferenceFact]
+    public void InspectJsonStatesWhatWasRead()
+    {
+        // Source: isobutanol-1h-300mhz-sqzdif.jdx (../shared/reference-data/jcamp, SOURCES.md): 300.149506 MHz, 2,153 points,
+        // x in PPM from 0.4499 to 3.9512.
+        var (code, o, err) = CliTests.Run("inspect", ReferenceData.PathOf("jcamp", "isobutanol-1h-300mhz-sqzdif.jdx"), "--json");
+        Assert.True(code == 0, err);
+        using var json = System.Text.Json.JsonDocument.Parse(o);
+        var root = json.RootElement;
+        Assert.Equal(2153, root.GetProperty("points").GetInt32());
+        Assert.Equal(300.149506, root.GetProperty("observe_mhz").GetDouble(), 6);
+        Assert.Equal(0.4499, Math.Min(root.GetProperty("ppm_first").GetDouble(), root.GetProperty("ppm_last").GetDouble()), 3);
+        Assert.Equal(3.9512, Math.Max(root.GetProperty("ppm_first").GetDouble(), root.GetProperty("ppm_last").GetDouble()), 3);
+        Assert.Equal(System.Text.Json.JsonValueKind.Array, root.GetProperty("warnings").ValueKind);
+    }
+
+    [Fact]
+    public void InspectOfADefectiveFileIsExitCodeOneWithFileAndLine()
+    {
+        var path = Path.Combine(Path.GetTempPath(), $"bad-{Guid.NewGuid():N}.csv");
+        File.WriteAllText(path, "shift,intensity\n1.0,2.0\n1.1,abc\n");
+        var (code, _, err) = CliTests.Run("inspect", path);
+        Assert.Equal(1, code);
+        Assert.Contains(path, err);
+        Assert.Contains("line 3", err);
+        File.Delete(path);
+    }
+
+    [Fact]
+    public void InspectReadsDecimalCommaSemicolonText()
+    {
+        var path = Path.Combine(Path.GetTempPath(), $"dc-{Guid.NewGuid():N}.csv");
+        File.WriteAllText(path, "ppm;int\n7,5;1,25\n7,4;2,5\n7,3;0,5\n");
+        var (code, o, err) = CliTests.Run("inspect", path, "--separator", "semicolon", "--decimal-comma", "--json");
+        Assert.True(code == 0, err);
+        Assert.Contains("\"points\": 3", o);
+        Assert.Contains("\"y_max\": 2.5", o);
+        File.Delete(path);
+    }
+}
