@@ -13,12 +13,15 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
     private const double ManagedSecondsPerCube = 1.65 / (924.0 * 924 * 924);
     private const double NativeSecondsPerCube = 0.12 / (924.0 * 924 * 924);
 
-    public static ResourceEstimate For(SpinSystem system)
+    public static ResourceEstimate For(SpinSystem system) => For(system, Enumerable.Range(0, system.Nuclei.Count).ToArray());
+
+    /// <summary>The cost of diagonalising the entries <paramref name="members"/> of <paramref name="system"/> together.</summary>
+    public static ResourceEstimate For(SpinSystem system, int[] members)
     {
         // Per combination the blocks are the multinomial slices of the product space; the largest combination
         // is the one where every set takes its largest total spin, and it dominates the cost.
-        var twiceF = system.Nuclei.Select(n => n.Count).ToArray();
-        var isotopes = system.Nuclei.Select(n => n.Isotope).ToArray();
+        var twiceF = members.Select(e => system.Nuclei[e].Count).ToArray();
+        var isotopes = members.Select(e => system.Nuclei[e].Isotope).ToArray();
         var blockSizes = BlockSizes(twiceF, isotopes);
         var largest = blockSizes.Count == 0 ? 0 : blockSizes.Max();
         double cubes = blockSizes.Sum(n => (double)n * n * n);
@@ -65,7 +68,7 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
 public sealed class SystemTooLargeException(ResourceEstimate estimate, long budgetBytes) : Exception(
     $"this spin system needs a block of {estimate.LargestBlock} states and about {estimate.WorkingBytes / (1L << 30):0.##} GiB of working memory, " +
     $"more than the budget of {budgetBytes / (double)(1L << 30):0.##} GiB. Merge magnetically equivalent nuclei into one entry with a count " +
-    "(a methyl is one entry with count = 3), or simulate weakly coupled parts separately")
+    "(a methyl is one entry with count = 3), or let SpinSim split weakly coupled parts (do not use --exact; lower the splitting threshold)")
 {
     public ResourceEstimate Estimate { get; } = estimate;
 }

@@ -12,29 +12,62 @@ public static class SpectrumEngine
     public static LineList Compute(SpinSystem system, EngineOptions? options = null, CancellationToken cancel = default)
     {
         options ??= EngineOptions.Default;
-        var estimate = ResourceEstimate.For(system);
-        if (estimate.WorkingBytes > options.MemoryBudgetBytes)
-            throw new SystemTooLargeException(estimate, options.MemoryBudgetBytes);
+        return Compute(system, PlanFor(system, options), options, cancel);
+    }
+
+    /// <summary>The cluster plan that <see cref="Compute(SpinSystem, EngineOptions?, CancellationToken)"/> uses under these options.</summary>
+    public static ClusterPlan PlanFor(SpinSystem system, EngineOptions options) => options.Splitting switch
+    {
+        ClusterSplitting.Exact => ClusterPartition.Whole(system),
+        ClusterSplitting.Split => ClusterPartition.Plan(system, options.WeakCouplingRatio),
+        _ => ResourceEstimate.For(system).LargestBlock <= options.AutoExactLargestBlock
+            ? ClusterPartition.Whole(system)
+            : ClusterPartition.Plan(system, options.WeakCouplingRatio),
+    };
+
+    public static LineList Compute(SpinSystem system, ClusterPlan plan, EngineOptions options, CancellationToken cancel = default)
+    {
+        foreach (var cluster in plan.Clusters)
+        {
+            var estimate = ResourceEstimate.For(system, cluster.Entries);
+            if (estimate.WorkingBytes > options.MemoryBudgetBytes)
+                throw new SystemTooLargeException(estimate, options.MemoryBudgetBytes);
+        }
 
         var backend = options.ResolvedBackend;
         var observeMHz = system.Observed.ObserveMHz(system.Field);
         var expectedTotal = ExpectedTotalIntensity(system);
         var floor = options.RelativeIntensityFloor * expectedTotal;
+        var totalSpins = system.Nuclei.Sum(n => n.Count);
 
-        var raw = new List<RawLines>();
-        var largest = 0;
-        var blocks = 0;
-        foreach (var combination in Combinations(system))
+        var work = new List<(Combination Combination, double Weight)>();
+        foreach (var cluster in plan.Clusters)
         {
-            var solver = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, system.Nuclei.Count, backend);
-            var sizes = solver.BlockSizes();
-            largest = Math.Max(largest, sizes.DefaultIfEmpty(0).Max());
-            blocks += sizes.Count;
-            raw.AddRange(solver.Solve(combination.Weight, floor, cancel));
+            // Spins neither in the cluster nor coupled to it multiply every line of the cluster by their state count.
+            var inert = totalSpins - cluster.Entries.Concat(cluster.Spectators).Sum(e => system.Nuclei[e].Count);
+            foreach (var (shift, weight) in ClusterPartition.SpectatorConfigurations(system, cluster))
+                foreach (var combination in Combinations(system, cluster.Entries, shift))
+                    work.Add((combination, combination.Weight * weight * Math.Pow(2, inert)));
         }
 
-        var (lines, origin) = Merge(raw, system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
-        return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, []);
+        var raw = new RawLines[work.Count][];
+        var sizes = new IReadOnlyList<int>[work.Count];
+        Parallel.For(0, work.Count, new ParallelOptions { CancellationToken = cancel }, k =>
+        {
+            var (combination, weight) = work[k];
+            var solver = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, system.Nuclei.Count, backend);
+            sizes[k] = solver.BlockSizes();
+            raw[k] = solver.Solve(weight, floor, cancel);
+        });
+        var largest = sizes.SelectMany(s => s).DefaultIfEmpty(0).Max();
+        var blocks = sizes.Sum(s => s.Count);
+
+        var (lines, origin) = Merge(raw.SelectMany(r => r).ToList(), system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
+        var notes = plan.IsExact ? new List<string> { "exact: the whole system was diagonalised as one" } : new List<string>
+        {
+            $"split into {plan.Clusters.Count} cluster(s) at |J/dnu| > {plan.Threshold}; the largest coupling treated to first order has |J/dnu| = {plan.LargestCutRatio:0.###}",
+        };
+        return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, notes);
     }
 
     /// <summary>Tr(F+ F-) = N 2^(N-1) for N observed spin-1/2 nuclei, times 2^M for M unobserved ones.</summary>
@@ -47,26 +80,30 @@ public static class SpectrumEngine
 
     internal sealed record Combination(Particle[] Particles, double[,] CouplingsHz, double Weight);
 
-    /// <summary>Every combination of total spins of the equivalent sets, with its multiplicity as weight.</summary>
-    internal static IEnumerable<Combination> Combinations(SpinSystem system)
+    /// <summary>
+    /// Every combination of total spins of the equivalent sets among <paramref name="members"/>, with its multiplicity
+    /// as weight; <paramref name="shiftHz"/> adds a spectator shift to each member's frequency.
+    /// </summary>
+    internal static IEnumerable<Combination> Combinations(SpinSystem system, int[] members, double[] shiftHz)
     {
-        var entries = system.Nuclei.Count;
+        var entries = members.Length;
         var groups = system.Nuclei.Select(n => n.Isotope).Distinct().ToList();
         var j = system.CouplingMatrixHz();
-        var options = system.Nuclei.Select(n => CompositeSpins.Decompose(n.Count)).ToArray();
+        var options = members.Select(e => CompositeSpins.Decompose(system.Nuclei[e].Count)).ToArray();
         var choice = new int[entries];
         while (true)
         {
             var particles = new List<Particle>();
             var index = new List<int>();
             double weight = 1;
-            for (var e = 0; e < entries; e++)
+            for (var c = 0; c < entries; c++)
             {
-                var spin = options[e][choice[e]];
+                var spin = options[c][choice[c]];
                 weight *= spin.Multiplicity;
                 if (spin.TwiceF == 0) continue; // a total spin of 0 neither flips nor shifts anything
+                var e = members[c];
                 var n = system.Nuclei[e];
-                particles.Add(new Particle(e, spin.TwiceF, groups.IndexOf(n.Isotope), system.FrequencyHz(e), n.Isotope == system.Observed));
+                particles.Add(new Particle(e, spin.TwiceF, groups.IndexOf(n.Isotope), system.FrequencyHz(e) + shiftHz[c], n.Isotope == system.Observed));
                 index.Add(e);
             }
             var couplings = new double[particles.Count, particles.Count];
