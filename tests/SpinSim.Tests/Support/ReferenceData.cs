@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace SpinSim.Tests.Support;
 
 /// <summary>
@@ -25,12 +27,18 @@ public static class ReferenceData
 
     public static string RepositoryRoot { get; } = FindRepositoryRoot();
 
-    private static string FindRepositoryRoot()
+    // Built with --artifacts-path the binaries live outside the repository, so fall back to where this
+    // source file was compiled from.
+    private static string FindRepositoryRoot([CallerFilePath] string sourceFile = "") =>
+        FindAbove(AppContext.BaseDirectory) ?? FindAbove(Path.GetDirectoryName(sourceFile))
+        ?? throw new InvalidOperationException($"SpinSim.sln not found above {AppContext.BaseDirectory} or {sourceFile}");
+
+    private static string? FindAbove(string? start)
     {
-        var dir = new DirectoryInfo(AppContext.BaseDirectory);
+        var dir = string.IsNullOrEmpty(start) ? null : new DirectoryInfo(start);
         while (dir is not null && !File.Exists(Path.Combine(dir.FullName, "SpinSim.sln")))
             dir = dir.Parent;
-        return dir?.FullName ?? throw new InvalidOperationException("SpinSim.sln not found above " + AppContext.BaseDirectory);
+        return dir?.FullName;
     }
 
     private static string? Locate()
