@@ -11,7 +11,7 @@ namespace SpinSim.Core.Spectrum;
 /// the power series of erf (Abramowitz and Stegun 7.1.5), far out Laplace's continued fraction, and in
 /// between Gautschi's Taylor expansion whose derivatives come from the continued fraction. The region
 /// boundaries and term counts are the published ones, quoted here from memory of the paper and confirmed
-/// by the tests. Beyond |z| of 1e8 three terms of the asymptotic series are exact to double precision and avoids
+/// by the tests. Beyond |z| of 1e8 three terms of the asymptotic series are exact to double precision and avoid
 /// overflow in the recurrences. The lower half plane follows from w(z) = 2 exp(-z^2) - w(-z).
 /// <para>
 /// Accuracy, verified against S. G. Johnson's test vectors and against mpmath (see the tests): relative
