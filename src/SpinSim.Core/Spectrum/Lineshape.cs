@@ -90,6 +90,9 @@ public sealed record Lineshape
         _ => VoigtDensityPerHz(offsetHz, Components(fwhmHz)),
     };
 
+    /// <summary>Im z = f_L / (2 sigma sqrt 2) = sqrt(ln 2) f_L / f_G of a Voigt, the same for every width.</summary>
+    internal double VoigtReducedLorentzianWidth => Math.Sqrt(Math.Log(2)) * (1 - GaussianShare) / GaussianShare;
+
     public override string ToString() =>
         Kind == LineshapeKind.Voigt ? $"Voigt (Gaussian share {GaussianShare:0.###})" : Kind.ToString();
 
