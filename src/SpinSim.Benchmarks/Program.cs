@@ -1,1 +1,1 @@
-Console.WriteLine("x");
+BenchmarkDotNet.Running.BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
