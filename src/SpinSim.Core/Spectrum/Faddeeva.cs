@@ -98,8 +98,15 @@ public static class Faddeeva
     private static (double Re, double Im) TwiceExpMinusZSquared(double x, double y)
     {
         // Re(-z^2) = y^2 - x^2; the factored form cannot overflow, so it decides underflow first.
-        if ((y - x) * (y + x) < -750)
+        double growth = (y - x) * (y + x);
+        if (growth < -750)
             return (0, 0); // below the smallest subnormal, whatever the phase (which may be huge or undefined)
+        if (growth > 1500)
+        {
+            // Beyond the double range even after a small cosine; the squares below could overflow to NaN.
+            var (s, c) = Math.SinCos(-2 * x * y);
+            return (Overflowed(c), Overflowed(s));
+        }
 
         double y2 = y * y, y2Err = Math.FusedMultiplyAdd(y, y, -y2);
         double x2 = x * x, x2Err = Math.FusedMultiplyAdd(x, x, -x2);
@@ -117,6 +124,9 @@ public static class Faddeeva
         double scale = 2 * (1 + exponentLow);
         return (scale * cos * half * half, scale * sin * half * half);
     }
+
+    private static double Overflowed(double direction) =>
+        direction == 0 ? 0 : double.IsNaN(direction) ? double.NaN : Math.CopySign(double.PositiveInfinity, direction);
 
     /// <summary>The rounding error of sum = a + b (Knuth's two-sum).</summary>
     private static double TwoSumError(double a, double b, double sum)

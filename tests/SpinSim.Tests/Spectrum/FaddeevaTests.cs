@@ -124,6 +124,18 @@ public class FaddeevaTests
         }
     }
 
+    [Fact]
+    public void W_OverflowsToInfinity_FarDownTheLowerHalfPlane()
+    {
+        // Closed form: w(-iy) = 2 exp(y^2) - exp(y^2) erfc(y), real and beyond the double range for y = 40.
+        var onAxis = Faddeeva.W(new Complex(0, -40));
+        Assert.Equal(double.PositiveInfinity, onAxis.Real);
+        Assert.Equal(0.0, onAxis.Imaginary);
+        // |w| ~ 2 exp(y^2 - x^2) = exp(1e400): both components infinite, never NaN.
+        var offAxis = Faddeeva.W(new Complex(1, -1e200));
+        Assert.True(double.IsInfinity(offAxis.Real) && double.IsInfinity(offAxis.Imaginary), offAxis.ToString());
+    }
+
     private static void AssertAllWithin(List<(double X, double Y, Complex W)> rows, double tolerance)
     {
         var worst = rows
