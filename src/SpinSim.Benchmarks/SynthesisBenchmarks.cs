@@ -4,6 +4,11 @@ using SpinSim.Core.Spectrum;
 namespace SpinSim.Benchmarks;
 
 /// <summary>The target: 10,000 lines on 65,536 points, at the default 200-FWHM cut-off.</summary>
+/// <remarks>
+/// Run from a Release build: <c>dotnet SpinSim.Benchmarks.dll --job short --filter *Synthesis*</c>. Built with
+/// --artifacts-path outside the repository the default toolchain cannot find the project file; add
+/// <c>--inProcess</c> there.
+/// </remarks>
 [MemoryDiagnoser]
 public class SynthesisBenchmarks
 {

@@ -11,10 +11,10 @@ namespace SpinSim.Core.Spectrum;
 /// 1 - (2/pi) atan(2K) (see <see cref="LorentzianTailFraction"/>: 0.16 % at the default K = 200). A Voigt line
 /// loses no more than that asymptotically, since its far tail is the Lorentzian of its narrower Lorentzian
 /// component. Gaussian lines are cut at the smaller of K and <see cref="GaussianCutoffFwhm"/> widths, beyond
-/// which less than 1e-31 of the area lies. Voigt lines are drawn from one <see cref="VoigtKernel"/> per
-/// shape (tables near the centre, a short series in the wings), which agrees with the Faddeeva function
-/// to 1e-13 of the peak at a few times the cost of a Lorentzian. Large jobs run in parallel over runs of lines, each into its own
-/// buffer; the result depends on the machine's core count (in the last bits) but never on thread timing.
+/// which less than 1e-31 of the area lies. All Voigt lines of one shape share one reduced profile, tabulated
+/// near the centre with a short series in the wings; it agrees with the Faddeeva function to 1e-13 of the
+/// peak at a few times the cost of a Lorentzian. Large jobs run in parallel over runs of lines, each into
+/// its own buffer; the result depends on the machine's core count (in the last bits), never on thread timing.
 /// </remarks>
 public static class TraceSynthesizer
 {
