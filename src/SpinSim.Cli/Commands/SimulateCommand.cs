@@ -1,25 +1,42 @@
 using System.CommandLine;
 using SpinSim.Core.Engine;
+using SpinSim.Core.Model;
+using SpinSim.Core.Spectrum;
+using SpinSim.Core.Traces;
 using SpinSim.Core.Units;
+using SpinSim.Formats.Delimited;
+using SpinSim.Formats.Jcamp;
 using SpinSim.Formats.Lines;
 using SpinSim.Formats.Output;
 using SpinSim.Formats.SpinSystems;
 
 namespace SpinSim.Cli.Commands;
 
-/// <summary><c>spinsim simulate SYSTEM</c>: the exact line list and, on request, the spectrum trace.</summary>
+/// <summary><c>spinsim simulate SYSTEM</c>: the exact line list, the trace and the integrals.</summary>
 public static class SimulateCommand
 {
+    /// <summary>Linewidth used when neither the file nor --linewidth gives one (a well-shimmed high-field magnet).</summary>
+    public const double FallbackLinewidthHz = 1.0;
+
     public static Command Build(CommandIo io)
     {
         var file = new Argument<string>("system") { Description = "Spin-system file (.toml or .json)" };
         var field = new Option<double?>("--field") { Description = "Spectrometer 1H frequency in MHz; overrides the file's field" };
         var lines = new Option<string?>("--lines") { Description = "Write the transition table (frequency_hz, shift_ppm, intensity, origin) to this CSV file" };
-        var verbose = new Option<bool>("--verbose", "-v") { Description = "Say which linear-algebra backend ran and what it cost" };
+        var spectrum = new Option<string?>("--spectrum") { Description = "Write the trace: .csv (shift_ppm, intensity) or .jdx/.dx (JCAMP-DX 5.01)" };
+        var engine = new EngineChoice();
+        var shape = new TraceChoice();
+        var jcampForm = new Option<string>("--jcamp-form") { Description = "JCAMP-DX data form: affn (plain numbers) or difdup (compressed)", DefaultValueFactory = _ => "affn" };
+        jcampForm.AcceptOnlyFromAmong("affn", "difdup");
+        var noise = new Option<double>("--noise") { Description = "Add Gaussian noise with this standard deviation, as a fraction of the tallest point (synthetic data for demos and tests)" };
+        var seed = new Option<int>("--seed") { Description = "Seed of the noise generator", DefaultValueFactory = _ => 1 };
+        var verbose = new Option<bool>("--verbose", "-v") { Description = "Say which linear-algebra backend ran, how the system was split and what it cost" };
         var command = new Command("simulate", "Simulate the spectrum of a spin system at a field: exact transitions, trace and integrals")
         {
-            file, field, lines, verbose,
+            file, field, lines, spectrum, jcampForm, noise, seed, verbose,
         };
+        engine.AddTo(command);
+        shape.AddTo(command);
         command.SetAction(parse =>
         {
             var path = parse.GetValue(file)!;
@@ -32,25 +49,144 @@ public static class SimulateCommand
             }
             foreach (var w in document.Warnings) io.Error.WriteLine($"warning: {w}");
 
+            var sigmaFraction = parse.GetValue(noise);
+            if (sigmaFraction < 0 || !double.IsFinite(sigmaFraction)) throw new UserInputException($"--noise must be 0 or above, got {sigmaFraction}");
+            var options = engine.Read(parse);
             var started = System.Diagnostics.Stopwatch.StartNew();
-            var result = SpectrumEngine.Compute(system, cancel: io.Cancel);
+            var result = SpectrumEngine.Compute(system, options, io.Cancel);
             var elapsed = started.Elapsed;
+            var settings = shape.Read(parse, document);
+            var simulated = SpectrumSimulator.Simulate(system, result, settings);
 
-            io.Out.WriteLine($"{system.Title} at {system.Field.Value:0.###} MHz: {result.Lines.Count} lines, " +
-                             $"total intensity {result.TotalIntensity:G8} (expected {result.ExpectedTotalIntensity:G8})");
+            io.Out.WriteLine($"{Title(system)} at {system.Field.Value:0.###} MHz: {result.Lines.Count} lines, " +
+                             $"{simulated.Grid.Points} points from {simulated.Grid.FromPpm:0.####} to {simulated.Grid.ToPpm:0.####} ppm, " +
+                             $"{settings.Shape} lines, default width {settings.DefaultWidth.Value:0.###} Hz");
+            io.Out.WriteLine("integrals (normalised to the number of observed nuclei):");
+            foreach (var integral in simulated.Integrals)
+                io.Out.WriteLine($"  {integral.Id,-10} {integral.ShiftPpm,8:0.000} ppm  {integral.Value,7:0.000}  (nuclei: {integral.Count})");
             if (parse.GetValue(verbose))
             {
                 io.Out.WriteLine($"backend: {result.Backend}");
+                foreach (var note in result.Notes) io.Out.WriteLine($"engine: {note}");
                 io.Out.WriteLine($"blocks: {result.Blocks}, largest {result.LargestBlock} states; {elapsed.TotalMilliseconds:0} ms");
-                io.Out.WriteLine($"dropped intensity below the floor: {result.DroppedIntensity:G3}");
+                io.Out.WriteLine($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; dropped below the floor: {result.DroppedIntensity:G3}");
+                if (simulated.NeglectedTailFraction > 0)
+                    io.Out.WriteLine($"lines evaluated within +-{settings.CutoffFwhm} widths; the Lorentzian tails left out hold {simulated.NeglectedTailFraction:P2} of each line's area");
             }
+
+            var inputs = new[] { path };
             if (parse.GetValue(lines) is { } linesPath)
             {
-                AtomicFile.Write(linesPath, w => LineListCsv.Write(w, result, system), [path]);
+                AtomicFile.Write(linesPath, w => LineListCsv.Write(w, result, system), inputs);
                 io.Out.WriteLine($"lines written to {linesPath}");
+            }
+            if (parse.GetValue(spectrum) is { } spectrumPath)
+            {
+                var trace = simulated.Trace;
+                var comments = new List<string>
+                {
+                    $"SpinSim {Versions.Current}: simulated {system.Observed} spectrum of {Path.GetFileName(path)} at {system.Field.Value:0.###} MHz",
+                    "synthetic: computed from a spin Hamiltonian, not measured",
+                };
+                if (sigmaFraction > 0)
+                {
+                    var noisy = trace.Intensity.ToArray();
+                    var sigma = sigmaFraction * noisy.Max();
+                    NoiseGenerator.AddGaussian(noisy, sigma, parse.GetValue(seed));
+                    trace = new SpectrumTrace(trace.ShiftPpm.ToArray(), noisy, trace.ObserveMHz, trace.Nucleus,
+                        TraceOrigin.Describe(trace.Origin.Source + " with synthetic noise", "simulated", trace.Origin.Form));
+                    comments.Add($"synthetic Gaussian noise added: standard deviation {sigma:G4} ({sigmaFraction:G3} of the tallest point), seed {parse.GetValue(seed)}");
+                }
+                WriteTrace(spectrumPath, trace, parse.GetValue(jcampForm) == "difdup" ? JcampForm.DifDup : JcampForm.Affn, comments, inputs);
+                io.Out.WriteLine($"spectrum written to {spectrumPath}");
             }
             return 0;
         });
         return command;
+    }
+
+    internal static string Title(SpinSystem system) => string.IsNullOrEmpty(system.Title) ? "spin system" : system.Title;
+
+    /// <summary>Writes a trace in the format its extension names.</summary>
+    internal static void WriteTrace(string path, SpectrumTrace trace, JcampForm form, IReadOnlyList<string> comments, IEnumerable<string> inputs)
+    {
+        switch (Path.GetExtension(path).ToLowerInvariant())
+        {
+            case ".csv":
+                AtomicFile.Write(path, w => SpectrumCsvWriter.Write(trace, w, comments), inputs);
+                break;
+            case ".jdx" or ".dx" or ".jcamp":
+                AtomicFile.Write(path, w => JcampWriter.Write(trace, w, form, comments), inputs);
+                break;
+            default:
+                throw new UserInputException($"{path}: unknown spectrum file type; use .csv, .jdx or .dx");
+        }
+    }
+}
+
+/// <summary>Options that choose exact or split simulation; shared by the commands that run the engine.</summary>
+public sealed class EngineChoice
+{
+    public Option<bool> Exact { get; } = new("--exact") { Description = "Diagonalise the whole system as one, never splitting weakly coupled parts" };
+    public Option<double?> SplitThreshold { get; } = new("--split-threshold")
+    {
+        Description = "Always split at this |J / delta nu| (default: exact while the system is small, else split at 0.05)",
+    };
+
+    public void AddTo(Command command)
+    {
+        command.Options.Add(Exact);
+        command.Options.Add(SplitThreshold);
+    }
+
+    public EngineOptions Read(ParseResult parse)
+    {
+        var threshold = parse.GetValue(SplitThreshold);
+        if (parse.GetValue(Exact) && threshold is not null) throw new UserInputException("--exact and --split-threshold exclude each other; give one");
+        if (threshold is { } t && !(t > 0 && double.IsFinite(t))) throw new UserInputException($"--split-threshold must be above 0, got {t}");
+        if (parse.GetValue(Exact)) return EngineOptions.Default with { Splitting = ClusterSplitting.Exact };
+        return threshold is { } s ? EngineOptions.Default with { Splitting = ClusterSplitting.Split, WeakCouplingRatio = s } : EngineOptions.Default;
+    }
+}
+
+/// <summary>Options that shape the trace: window, points, widths and lineshape.</summary>
+public sealed class TraceChoice
+{
+    public Option<double?> From { get; } = new("--from") { Description = "High-ppm (left) end of the window (default: all lines plus a margin)" };
+    public Option<double?> To { get; } = new("--to") { Description = "Low-ppm (right) end of the window" };
+    public Option<int> Points { get; } = new("--points") { Description = "Points of the trace", DefaultValueFactory = _ => 65536 };
+    public Option<double?> Linewidth { get; } = new("--linewidth") { Description = "Default full width at half maximum in Hz (nuclei with their own linewidth_hz keep it)" };
+    public Option<string> Shape { get; } = new("--shape") { Description = "Lineshape: lorentzian, gaussian or voigt", DefaultValueFactory = _ => "lorentzian" };
+    public Option<double> GaussianShare { get; } = new("--gaussian-share")
+    {
+        Description = "For --shape voigt: Gaussian share f_G / (f_L + f_G) of the width, 0 to 1",
+        DefaultValueFactory = _ => 0.5,
+    };
+    public Option<double> ReferenceOffset { get; } = new("--reference-offset") { Description = "Shift the whole axis by this many ppm (imitates a referencing error)" };
+
+    public TraceChoice() => Shape.AcceptOnlyFromAmong("lorentzian", "gaussian", "voigt");
+
+    public void AddTo(Command command)
+    {
+        foreach (var o in new Option[] { From, To, Points, Linewidth, Shape, GaussianShare, ReferenceOffset }) command.Options.Add(o);
+    }
+
+    public SimulationSettings Read(ParseResult parse, SpinSystemDocument document)
+    {
+        var width = parse.GetValue(Linewidth) ?? document.DefaultWidth?.Value ?? SimulateCommand.FallbackLinewidthHz;
+        if (!(width > 0 && double.IsFinite(width))) throw new UserInputException($"--linewidth must be above 0 Hz, got {width}");
+        var points = parse.GetValue(Points);
+        if (points < 2 || points > 16_777_216) throw new UserInputException($"--points must be between 2 and 16777216, got {points}");
+        var share = parse.GetValue(GaussianShare);
+        if (!(share >= 0 && share <= 1)) throw new UserInputException($"--gaussian-share must be between 0 and 1, got {share}");
+        var shape = parse.GetValue(Shape) switch
+        {
+            "gaussian" => Lineshape.Gaussian,
+            "voigt" => Lineshape.Voigt(share),
+            _ => Lineshape.Lorentzian,
+        };
+        var (from, to) = (parse.GetValue(From), parse.GetValue(To));
+        if (from is { } f && to is { } t && f == t) throw new UserInputException("--from and --to must differ");
+        return new SimulationSettings(new WidthHz(width), shape, from, to, points, parse.GetValue(ReferenceOffset));
     }
 }

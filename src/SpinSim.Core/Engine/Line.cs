@@ -6,8 +6,8 @@ public readonly record struct Line(double FrequencyHz, double ShiftPpm, double I
 /// <summary>
 /// The result of the engine: the observed lines, sorted by frequency, and what it cost to get them. For every line the
 /// list also holds its origin: one weight per nucleus entry of the system (zero for unobserved entries) saying how much
-/// of the spin flip happens on that entry, i.e. the change of its expected Iz between the two eigenstates, clipped at
-/// zero and normalised to sum 1.
+/// of the spin flip happens on that entry, i.e. the change of its expected Iz between the two eigenstates. The weights
+/// of a line sum to 1; in strongly coupled systems single weights may be slightly negative.
 /// </summary>
 public sealed class LineList
 {
@@ -49,6 +49,25 @@ public sealed class LineList
 
     /// <summary>Origin weights of line <paramref name="line"/>, one per entry, summing to 1.</summary>
     public ReadOnlySpan<double> OriginOf(int line) => _origin.AsSpan(line * EntryCount, EntryCount);
+
+    /// <summary>
+    /// Intensity-weighted mean of <paramref name="perEntry"/> over the entries that flip in line <paramref name="line"/>
+    /// (negative origin weights clipped at zero): how a line of mixed origin inherits a width.
+    /// </summary>
+    public double WeightedByOrigin(int line, ReadOnlySpan<double> perEntry)
+    {
+        var origin = OriginOf(line);
+        double sum = 0, weight = 0;
+        for (var e = 0; e < EntryCount; e++)
+        {
+            var w = Math.Max(0, origin[e]);
+            sum += w * perEntry[e];
+            weight += w;
+        }
+        if (weight > 0) return sum / weight;
+        for (var e = 0; e < EntryCount; e++) if (origin[e] != 0) return perEntry[e];
+        return perEntry[0];
+    }
 
     /// <summary>Entries that carry at least <paramref name="share"/> of the flip of line <paramref name="line"/>, largest first.</summary>
     public IReadOnlyList<int> DominantEntries(int line, double share = 0.25)

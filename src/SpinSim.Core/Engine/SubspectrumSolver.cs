@@ -19,19 +19,19 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
 
     public int Count => FrequencyHz.Count;
 
-    /// <summary>Adds <paramref name="scale"/> x the origin weights of line <paramref name="k"/> to <paramref name="row"/> (one slot per entry).</summary>
+    /// <summary>
+    /// Adds <paramref name="scale"/> x the origin weights of line <paramref name="k"/> to <paramref name="row"/> (one slot
+    /// per entry): the change of each entry's expected Fz between the two eigenstates. They sum to exactly 1 because the
+    /// states differ by one unit of total M, and summed over all lines (times intensity) they give Tr(F+ I-_e), so the
+    /// integrals they yield are exact. Single weights may be slightly negative in strongly coupled systems.
+    /// </summary>
     public void AddOrigin(int k, double scale, Span<double> row)
     {
         var a = (int)(States[k] >> 32);
         var b = (int)(States[k] & 0xffffffff);
         var count = observedEntries.Length;
-        var total = 0.0;
-        for (var i = 0; i < count; i++) total += Math.Max(0, izUpper[a * count + i] - izLower[b * count + i]);
         for (var i = 0; i < count; i++)
-        {
-            var share = total > 0 ? Math.Max(0, izUpper[a * count + i] - izLower[b * count + i]) / total : 1.0 / count;
-            row[observedEntries[i]] += scale * share;
-        }
+            row[observedEntries[i]] += scale * (izUpper[a * count + i] - izLower[b * count + i]);
     }
 }
 
