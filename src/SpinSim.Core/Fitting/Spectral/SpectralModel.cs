@@ -1,0 +1,232 @@
+using System.Numerics;
+using SpinSim.Core.Engine;
+using SpinSim.Core.Model;
+using SpinSim.Core.Spectrum;
+
+namespace SpinSim.Core.Fitting.Spectral;
+
+/// <summary>
+/// The least-squares model of a spectrum fit: free values -> spin system -> lines at each trace's field -> trace on the
+/// fitted points, with scale, polynomial baseline, frequency offset and zero-order phase per trace. Residual = model - data.
+/// Line lists are cached by their shift and coupling values, so derivatives in the other parameters cost no
+/// diagonalisation. One instance per thread.
+/// </summary>
+internal sealed class SpectralModel : ILeastSquaresModel
+{
+    /// <summary>Lines are evaluated within this many widths of their centre (Lorentzian tail beyond: 0.16 %).</summary>
+    private const double CutoffWidths = 200;
+
+    private readonly SpinSystem _system;
+    private readonly ParameterLayout _layout;
+    private readonly IReadOnlyList<PreparedData> _data;
+    private readonly Lineshape _shape;
+    private readonly EngineOptions _engine;
+    private readonly double _broadeningHz;
+    private readonly Dictionary<string, LineList>[] _cache;
+    private readonly int[] _offsets;
+
+    public SpectralModel(SpinSystem system, ParameterLayout layout, IReadOnlyList<PreparedData> data, Lineshape shape, EngineOptions engine, double broadeningHz)
+    {
+        _system = system;
+        _layout = layout;
+        _data = data;
+        _shape = shape;
+        _engine = engine;
+        _broadeningHz = broadeningHz;
+        _cache = data.Select(_ => new Dictionary<string, LineList>()).ToArray();
+        _offsets = new int[data.Count + 1];
+        for (var d = 0; d < data.Count; d++) _offsets[d + 1] = _offsets[d] + data[d].Count;
+    }
+
+    public int ParameterCount => _layout.FreeCount;
+    public int ResidualCount => _offsets[^1];
+    public IReadOnlyList<PreparedData> Data => _data;
+
+    public void Residuals(ReadOnlySpan<double> parameters, Span<double> residuals)
+    {
+        var full = _layout.Expand(parameters);
+        for (var d = 0; d < _data.Count; d++)
+        {
+            var span = residuals.Slice(_offsets[d], _data[d].Count);
+            if (!TryModel(full, d, span)) { residuals.Fill(double.NaN); return; }
+            var y = _data[d].Y;
+            for (var i = 0; i < span.Length; i++) span[i] -= y[i];
+        }
+    }
+
+    /// <summary>Difference steps per free value (absolute), set by the fitter.</summary>
+    public double[] Steps { get; set; } = [];
+
+    /// <summary>
+    /// Scale and baseline columns are exact (the model is linear in them); the others are central differences of the
+    /// model, which for widths, offsets and phases reuse the cached line lists.
+    /// </summary>
+    public bool TryJacobian(ReadOnlySpan<double> parameters, ReadOnlySpan<double> residuals, double[,] jacobian)
+    {
+        var x = parameters.ToArray();
+        var full = _layout.Expand(x);
+        var plus = new double[ResidualCount];
+        var minus = new double[ResidualCount];
+        for (var f = 0; f < x.Length; f++)
+        {
+            var members = _layout.MembersOf(f).Select(i => _layout.Parameters[i]).ToArray();
+            if (members.All(m => m.Kind == ParameterKind.Baseline))
+            {
+                for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = 0;
+                foreach (var m in members)
+                {
+                    var data = _data[m.Dataset];
+                    for (var i = 0; i < data.Count; i++)
+                        jacobian[_offsets[m.Dataset] + i, f] += Math.Pow((data.Ppm[i] - data.BaselineCentrePpm) / data.BaselineHalfSpanPpm, m.Index);
+                }
+                continue;
+            }
+            if (members.All(m => m.Kind == ParameterKind.Scale) && x[f] != 0)
+            {
+                for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = 0;
+                foreach (var m in members)
+                {
+                    var data = _data[m.Dataset];
+                    var baseline = Baseline(full, m.Dataset);
+                    for (var i = 0; i < data.Count; i++)
+                    {
+                        var k = _offsets[m.Dataset] + i;
+                        jacobian[k, f] += (residuals[k] + data.Y[i] - baseline[i]) / x[f];
+                    }
+                }
+                continue;
+            }
+            var h = Steps.Length == x.Length ? Steps[f] : 1e-6 * Math.Max(1, Math.Abs(x[f]));
+            var keep = x[f];
+            x[f] = keep + h;
+            Residuals(x, plus);
+            x[f] = keep - h;
+            Residuals(x, minus);
+            x[f] = keep;
+            for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = (plus[r] - minus[r]) / (2 * h);
+        }
+        return true;
+    }
+
+    private double[] Baseline(double[] full, int d)
+    {
+        var data = _data[d];
+        var b = new double[data.Count];
+        for (var k = 0; k < full.Length; k++)
+        {
+            var p = _layout.Parameters[k];
+            if (p.Kind != ParameterKind.Baseline || p.Dataset != d) continue;
+            for (var i = 0; i < data.Count; i++) b[i] += full[k] * Math.Pow((data.Ppm[i] - data.BaselineCentrePpm) / data.BaselineHalfSpanPpm, p.Index);
+        }
+        return b;
+    }
+
+    /// <summary>The model of dataset <paramref name="d"/> at the fitted points, in normalised units.</summary>
+    public double[] Model(double[] full, int d)
+    {
+        var y = new double[_data[d].Count];
+        if (!TryModel(full, d, y)) Array.Fill(y, double.NaN);
+        return y;
+    }
+
+    public LineList Lines(double[] full, int d) => LinesFor(full, d);
+
+    private bool TryModel(double[] full, int d, Span<double> y)
+    {
+        LineList lines;
+        try { lines = LinesFor(full, d); }
+        catch (SpinSystemException) { return false; }
+        var data = _data[d];
+        double scale = 1, offsetHz = 0, phaseDeg = 0, globalWidth = double.NaN;
+        var baseline = new List<(int Order, double Value)>();
+        var perEntryWidth = new double[_system.Nuclei.Count];
+        var hasPerEntry = false;
+        for (var i = 0; i < full.Length; i++)
+        {
+            var p = _layout.Parameters[i];
+            if (p.Dataset >= 0 && p.Dataset != d) continue;
+            switch (p.Kind)
+            {
+                case ParameterKind.Scale: scale = full[i]; break;
+                case ParameterKind.OffsetHz: offsetHz = full[i]; break;
+                case ParameterKind.PhaseDeg: phaseDeg = full[i]; break;
+                case ParameterKind.Baseline: baseline.Add((p.Index, full[i])); break;
+                case ParameterKind.LinewidthHz when p.Index < 0: globalWidth = full[i]; break;
+                case ParameterKind.LinewidthHz: perEntryWidth[p.Index] = full[i]; hasPerEntry = true; break;
+            }
+        }
+        if (hasPerEntry)
+            for (var e = 0; e < perEntryWidth.Length; e++)
+                if (perEntryWidth[e] == 0) perEntryWidth[e] = double.IsNaN(globalWidth) ? 1.0 : globalWidth;
+
+        var areaScale = scale / Math.Pow(2, _system.Nuclei.Sum(n => n.Count) - 1) / data.Normalisation;
+        var cos = Math.Cos(phaseDeg * Math.PI / 180);
+        var sin = Math.Sin(phaseDeg * Math.PI / 180);
+        y.Clear();
+        for (var l = 0; l < lines.Lines.Count; l++)
+        {
+            var width = hasPerEntry ? lines.WeightedByOrigin(l, perEntryWidth) : globalWidth;
+            if (!(width > 0)) return false;
+            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + offsetHz, lines.Lines[l].Intensity * areaScale, width, cos, sin);
+        }
+        foreach (var (order, value) in baseline)
+            for (var i = 0; i < y.Length; i++)
+                y[i] += value * Math.Pow((data.Ppm[i] - data.BaselineCentrePpm) / data.BaselineHalfSpanPpm, order);
+        return true;
+    }
+
+    private void AddLine(double[] hz, Span<double> y, double centreHz, double area, double widthHz, double cos, double sin)
+    {
+        var (lorentzian, gaussian) = _shape.Components(widthHz);
+        lorentzian += _broadeningHz;
+        var reach = CutoffWidths * (lorentzian + gaussian);
+        var first = LowerBound(hz, centreHz - reach);
+        var last = LowerBound(hz, centreHz + reach);
+        if (gaussian == 0)
+        {
+            var half = lorentzian / 2;
+            var h2 = half * half;
+            var a = area / Math.PI;
+            for (var i = first; i < last; i++)
+            {
+                var dx = hz[i] - centreHz;
+                var inv = a / (dx * dx + h2);
+                y[i] += inv * (half * cos - dx * sin);
+            }
+            return;
+        }
+        var sigma = Lineshape.GaussianSigmaHz(gaussian);
+        var norm = area / (sigma * Math.Sqrt(2 * Math.PI));
+        var denominator = sigma * Math.Sqrt(2);
+        for (var i = first; i < last; i++)
+        {
+            var w = Faddeeva.W(new Complex((hz[i] - centreHz) / denominator, lorentzian / 2 / denominator));
+            y[i] += norm * (w.Real * cos - w.Imaginary * sin);
+        }
+    }
+
+    private static int LowerBound(double[] sorted, double value)
+    {
+        int lo = 0, hi = sorted.Length;
+        while (lo < hi)
+        {
+            var mid = (lo + hi) >> 1;
+            if (sorted[mid] < value) lo = mid + 1; else hi = mid;
+        }
+        return lo;
+    }
+
+    private LineList LinesFor(double[] full, int d)
+    {
+        var key = string.Join(",", Enumerable.Range(0, full.Length)
+            .Where(i => _layout.Parameters[i].Kind is ParameterKind.ShiftPpm or ParameterKind.JHz)
+            .Select(i => BitConverter.DoubleToInt64Bits(full[i])));
+        var cache = _cache[d];
+        if (cache.TryGetValue(key, out var cached)) return cached;
+        var system = _layout.ApplySpin(_system, full).WithField(new Units.FieldMHz(_data[d].ObserveMHz / _system.Observed.FrequencyRatioPercent * 100));
+        var lines = SpectrumEngine.Compute(system, _engine);
+        if (cache.Count > 256) cache.Clear();
+        cache[key] = lines;
+        return lines;
+    }
+}

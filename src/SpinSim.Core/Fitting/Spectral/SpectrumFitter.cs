@@ -1,0 +1,236 @@
+using SpinSim.Core.Engine;
+using SpinSim.Core.Model;
+using SpinSim.Core.Spectrum;
+using SpinSim.Core.Units;
+
+namespace SpinSim.Core.Fitting.Spectral;
+
+/// <summary>What to fit: the system (its values are the start), the traces, the parameters and which are tied.</summary>
+public sealed record SpectrumFitProblem(
+    SpinSystem System,
+    IReadOnlyList<FitDataset> Data,
+    IReadOnlyList<FitParameter> Parameters,
+    IReadOnlyList<IReadOnlyList<string>> Ties,
+    Lineshape Shape);
+
+/// <summary>How to search.</summary>
+/// <param name="Starts">Number of starts: the given one plus random perturbations of shifts and couplings.</param>
+/// <param name="ShiftJitterHz">Starts other than the first move each varied shift by up to this many Hz.</param>
+/// <param name="CouplingJitterFraction">... and each varied coupling by up to this fraction of its value.</param>
+/// <param name="Continuation">Fit broadened copies of data and model first, narrowing in stages down to none.</param>
+public sealed record SpectrumFitOptions(
+    int Starts = 8,
+    double ShiftJitterHz = 10,
+    double CouplingJitterFraction = 0.2,
+    bool Continuation = true,
+    int Seed = 1,
+    int MaxIterationsPerStage = 300,
+    IProgress<FitProgress>? Progress = null,
+    CancellationToken Cancel = default,
+    EngineOptions? Engine = null);
+
+/// <summary>Progress of a fit: which start and stage, and the cost so far.</summary>
+public sealed record FitProgress(int Start, int Stage, int Stages, double BroadeningHz, int Iteration, double ResidualSumOfSquares);
+
+/// <summary>Fits shifts, couplings, widths, scale, baseline, offset and phase to one or more measured traces.</summary>
+public static class SpectrumFitter
+{
+    /// <summary>Starts whose final cost is within this fraction of the best are counted as having reached it.</summary>
+    public const double SameOptimumTolerance = 1e-4;
+
+    public static SpectrumFitResult Fit(SpectrumFitProblem problem, SpectrumFitOptions? options = null)
+    {
+        options ??= new SpectrumFitOptions();
+        var engine = options.Engine ?? new EngineOptions(RelativeIntensityFloor: 1e-8);
+        var prepared = problem.Data.Select(PreparedData.From).ToArray();
+        var layout = new ParameterLayout(StartScales(problem, prepared, engine), problem.Ties);
+        if (layout.FreeCount == 0) throw new ArgumentException("nothing to fit: every parameter is fixed");
+        var points = prepared.Sum(p => p.Count);
+        if (points <= layout.FreeCount)
+            throw new ArgumentException($"the fitted regions hold {points} points, not more than the {layout.FreeCount} free parameters; widen the regions");
+
+        var stages = Stages(problem, options);
+        var starts = StartPoints(problem, layout, options);
+        var (lower, upper) = layout.FreeBounds();
+        // Shifts without bounds of their own stay within the fitted regions: outside them a nucleus has no data to
+        // pull it back, and the scale would absorb its loss.
+        var regionLow = problem.Data.Min(d => d.Regions.Min(r => r.Low));
+        var regionHigh = problem.Data.Max(d => d.Regions.Max(r => r.High));
+        for (var f = 0; f < layout.FreeCount; f++)
+            if (layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.ShiftPpm)
+                (lower[f], upper[f]) = (Math.Max(lower[f], regionLow), Math.Min(upper[f], regionHigh));
+        foreach (var x in starts)
+            for (var f = 0; f < x.Length; f++) x[f] = Math.Clamp(x[f], lower[f], upper[f]);
+
+        // Every start runs every stage on thinned points (>= 10 per linewidth at the last stage); the best is then
+        // polished on all points, and that run gives the reported statistics.
+        var outcomes = new (double[] Free, LeastSquaresResult Result)[starts.Count];
+        Parallel.For(0, starts.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
+        {
+            var x = starts[s];
+            LeastSquaresResult? last = null;
+            for (var k = 0; k < stages.Count; k++)
+            {
+                if (options.Cancel.IsCancellationRequested && last is not null) break;
+                var stage = stages[k];
+                last = RunStage(problem, layout, prepared, engine, stage, x, lower, upper, options, s, k, stages.Count);
+                x = last.Parameters;
+                if (Environment.GetEnvironmentVariable("SPINSIM_FIT_DEBUG") == "1")
+                    Console.Error.WriteLine($"start {s} stage {k} W {stage.BroadeningHz:0.0} stride {stage.Stride} hold {stage.HoldCouplings}: cost {last.ResidualSumOfSquares:E3} it {last.Iterations} x {string.Join(" ", x.Select(v => v.ToString("0.####")))}");
+            }
+            outcomes[s] = (x, last!);
+        });
+
+        var bestCost = outcomes.Min(o => o.Result.ResidualSumOfSquares);
+        var atBest = outcomes.Where(o => o.Result.ResidualSumOfSquares <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
+        var reached = atBest.Count;
+        // Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'): keep the user's labels
+        // by taking, among the starts at the best cost, the one whose shifts moved least from the given start.
+        var best = atBest.OrderBy(o => ShiftDistance(layout, o.Free, starts[0])).First();
+        if (Environment.GetEnvironmentVariable("SPINSIM_FIT_DEBUG") == "1")
+            foreach (var o in outcomes) Console.Error.WriteLine($"start: cost {o.Result.ResidualSumOfSquares:E4} it {o.Result.Iterations} {o.Result.Reason}");
+        var polish = options.Cancel.IsCancellationRequested
+            ? best.Result
+            : RunStage(problem, layout, prepared, engine, new Stage(0, 1, false), best.Free, lower, upper, options, -1, stages.Count, stages.Count + 1);
+        var finalFree = polish.ResidualSumOfSquares <= best.Result.ResidualSumOfSquares || !polish.Converged ? polish.Parameters : best.Free;
+        var finalModel = new SpectralModel(problem.System, layout, prepared, problem.Shape, engine, 0);
+        return SpectrumFitResult.Build(problem, layout, finalModel, polish.Parameters, polish, starts.Count, reached,
+            options.Cancel.IsCancellationRequested);
+    }
+
+    private static double ShiftDistance(ParameterLayout layout, double[] a, double[] b) =>
+        Enumerable.Range(0, layout.FreeCount).Where(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.ShiftPpm)
+            .Sum(f => Math.Abs(a[f] - b[f]));
+
+    /// <summary>
+    /// One continuation stage: added Lorentzian broadening, point stride, and whether couplings are held. While broadened,
+    /// the linewidth is held and the scale kept within a factor of two of its start: with lines that miss the data the
+    /// cheapest fit is otherwise a zero scale, from which no gradient leads back.
+    /// </summary>
+    private sealed record Stage(double BroadeningHz, int Stride, bool HoldCouplings);
+
+    private static LeastSquaresResult RunStage(SpectrumFitProblem problem, ParameterLayout layout, PreparedData[] prepared, EngineOptions engine,
+        Stage stage, double[] x, double[] lower, double[] upper, SpectrumFitOptions options, int start, int index, int count)
+    {
+        var data = prepared.Select((p, d) => p.Broadened(problem.Data[d].Trace, stage.BroadeningHz, stage.Stride)).ToArray();
+        var model = new SpectralModel(problem.System, layout, data, problem.Shape, engine, stage.BroadeningHz) { Steps = Steps(layout, x, prepared) };
+        var (lo, hi) = ((double[])lower.Clone(), (double[])upper.Clone());
+        for (var f = 0; f < layout.FreeCount; f++)
+        {
+            var kind = layout.Parameters[layout.FreeRepresentatives[f]].Kind;
+            if ((stage.HoldCouplings && kind == ParameterKind.JHz) || (stage.BroadeningHz > 0 && kind == ParameterKind.LinewidthHz))
+                lo[f] = hi[f] = x[f];
+            if (stage.BroadeningHz > 0 && kind == ParameterKind.Scale)
+                (lo[f], hi[f]) = (Math.Max(lo[f], x[f] / 2), Math.Min(hi[f], x[f] * 2));
+        }
+        var progress = options.Progress is null ? null : new InlineProgress<LeastSquaresProgress>(p =>
+            options.Progress.Report(new FitProgress(start, index + 1, count, stage.BroadeningHz, p.Iteration, p.ResidualSumOfSquares)));
+        return LevenbergMarquardt.Minimise(model, x, new LeastSquaresOptions
+        {
+            LowerBounds = lo,
+            UpperBounds = hi,
+            MaxIterations = options.MaxIterationsPerStage,
+            GradientTolerance = 1e-10,
+            StepTolerance = 1e-10,
+            FunctionTolerance = 1e-12,
+            Progress = progress,
+            Cancellation = options.Cancel,
+        });
+    }
+
+    /// <summary>
+    /// Replaces the start of every varied scale by the least-squares scale of the starting model (projection of the data
+    /// onto it), so that fits start at the right height whatever the units of the measured trace.
+    /// </summary>
+    private static IReadOnlyList<FitParameter> StartScales(SpectrumFitProblem problem, PreparedData[] prepared, EngineOptions engine)
+    {
+        var parameters = problem.Parameters.ToArray();
+        var probe = parameters.Select(p => p.Kind == ParameterKind.Baseline ? p with { Start = 0 } : p).ToArray();
+        var layout = new ParameterLayout(probe, []);
+        var model = new SpectralModel(problem.System, layout, prepared, problem.Shape, engine, 0);
+        for (var i = 0; i < parameters.Length; i++)
+        {
+            var p = parameters[i];
+            if (p.Kind != ParameterKind.Scale || !p.Vary) continue;
+            var full = probe.Select(q => q.Start).ToArray();
+            var m = model.Model(full, p.Dataset);
+            var y = prepared[p.Dataset].Y;
+            // Areas, not a projection: a start whose lines miss the data's lines still gets the right height.
+            double sumY = 0, sumM = 0;
+            for (var k = 0; k < m.Length; k++) { sumY += y[k]; sumM += m[k]; }
+            var scale = p.Start * (sumM > 0 && sumY > 0 ? sumY / sumM : 1);
+            parameters[i] = p with { Start = Math.Clamp(scale, Math.Max(p.Lower, 1e-300), p.Upper) };
+        }
+        return parameters;
+    }
+
+    /// <summary>
+    /// Continuation from broad to narrow lines: Lorentzian broadening of data and model from max(2 x shift jitter, max |J|)
+    /// down by thirds while above 2 Hz, then none. Couplings are held while the broadening exceeds half the largest |J|
+    /// (the blurred pattern tells little about them). Points are thinned to about six per broadened linewidth.
+    /// </summary>
+    private static List<Stage> Stages(SpectrumFitProblem problem, SpectrumFitOptions options)
+    {
+        var stages = new List<Stage>();
+        var finestStep = problem.Data.Min(StepHz);
+        var width = problem.Parameters.Where(p => p.Kind == ParameterKind.LinewidthHz).Select(p => p.Start).DefaultIfEmpty(1).Min();
+        var maxJ = problem.System.Couplings.Select(c => Math.Abs(c.J.Value)).DefaultIfEmpty(0).Max();
+        if (options.Continuation)
+            for (var w = Math.Max(2 * options.ShiftJitterHz, maxJ); w > 2.0; w /= 3)
+                stages.Add(new Stage(w, Math.Max(1, (int)((w + width) / 20 / finestStep)), w > maxJ / 2));
+        stages.Add(new Stage(0, Math.Max(1, (int)(width / 10 / finestStep)), false));
+        return stages;
+    }
+
+    private static double StepHz(FitDataset d)
+    {
+        var t = d.Trace;
+        return Math.Abs(t.ShiftPpm[^1] - t.ShiftPpm[0]) * d.ObserveMHz / Math.Max(1, t.Count - 1);
+    }
+
+    private static List<double[]> StartPoints(SpectrumFitProblem problem, ParameterLayout layout, SpectrumFitOptions options)
+    {
+        var random = new Random(options.Seed);
+        var first = layout.FreeStart();
+        var (lower, upper) = layout.FreeBounds();
+        var starts = new List<double[]> { first };
+        var observeMHz = problem.Data[0].ObserveMHz;
+        for (var s = 1; s < options.Starts; s++)
+        {
+            var x = (double[])first.Clone();
+            for (var f = 0; f < x.Length; f++)
+            {
+                var p = layout.Parameters[layout.FreeRepresentatives[f]];
+                x[f] = p.Kind switch
+                {
+                    ParameterKind.ShiftPpm => x[f] + (2 * random.NextDouble() - 1) * options.ShiftJitterHz / observeMHz,
+                    ParameterKind.JHz => x[f] * (1 + (2 * random.NextDouble() - 1) * options.CouplingJitterFraction),
+                    _ => x[f],
+                };
+                x[f] = Math.Clamp(x[f], lower[f], upper[f]);
+            }
+            starts.Add(x);
+        }
+        return starts;
+    }
+
+    /// <summary>Absolute difference steps: 1e-4 Hz for shifts, couplings, widths and offsets; relative for the rest.</summary>
+    private static double[] Steps(ParameterLayout layout, double[] x, PreparedData[] data) =>
+        Enumerable.Range(0, layout.FreeCount).Select(f =>
+        {
+            var p = layout.Parameters[layout.FreeRepresentatives[f]];
+            return p.Kind switch
+            {
+                ParameterKind.ShiftPpm => 1e-4 / data[0].ObserveMHz,
+                ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz => 1e-4,
+                ParameterKind.PhaseDeg => 1e-3,
+                _ => 1e-6 * Math.Max(1, Math.Abs(x[f])),
+            };
+        }).ToArray();
+
+    /// <summary>Reports synchronously on the calling thread (Progress&lt;T&gt; would post to a context).</summary>
+    private sealed class InlineProgress<T>(Action<T> report) : IProgress<T>
+    {
+        public void Report(T value) => report(value);
+    }
+}

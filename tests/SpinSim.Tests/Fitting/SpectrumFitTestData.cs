@@ -1,0 +1,71 @@
+using SpinSim.Core.Engine;
+using SpinSim.Core.Fitting.Spectral;
+using SpinSim.Core.Model;
+using SpinSim.Core.Spectrum;
+using SpinSim.Core.Traces;
+using SpinSim.Core.Units;
+
+namespace SpinSim.Tests.Fitting;
+
+/// <summary>Invented test systems and synthetic traces (known truth plus seeded noise) for the fitting tests.</summary>
+public static class SpectrumFitTestData
+{
+    /// <summary>Invented AA'BB' ring at 80 MHz.</summary>
+    public static SpinSystem AaBb() => SpinSystem.Create(new FieldMHz(80),
+        [new("HA", 7.34), new("HA'", 7.34), new("HB", 7.08), new("HB'", 7.08)],
+        [new("HA", "HB", 8.6), new("HA'", "HB'", 8.6), new("HA", "HB'", 0.35), new("HA'", "HB", 0.35), new("HA", "HA'", 2.2), new("HB", "HB'", 2.6)]);
+
+    public static readonly IReadOnlyList<IReadOnlyList<string>> AaBbTies =
+    [
+        ["shift:HA", "shift:HA'"], ["shift:HB", "shift:HB'"], ["j:HA-HB", "j:HA'-HB'"], ["j:HA-HB'", "j:HA'-HB"],
+    ];
+
+    /// <summary>Invented ABX (CH2 next to a stereocentre) at 100 MHz.</summary>
+    public static SpinSystem Abx() => SpinSystem.Create(new FieldMHz(100),
+        [new("HA", 2.74), new("HB", 2.61), new("HX", 4.08)],
+        [new("HA", "HB", -16.4), new("HA", "HX", 4.7), new("HB", "HX", 8.9)]);
+
+    /// <summary>A synthetic measured trace of <paramref name="system"/>: Lorentzian lines, seeded Gaussian noise (fraction of the tallest point).</summary>
+    public static SpectrumTrace Synthetic(SpinSystem system, double widthHz, int points, double noiseFraction, int seed, double phaseDeg = 0)
+    {
+        var lines = SpectrumEngine.Compute(system);
+        var settings = new SimulationSettings(new WidthHz(widthHz), Lineshape.Lorentzian, Points: points);
+        var simulated = SpectrumSimulator.Simulate(system, lines, settings);
+        var y = simulated.Trace.Intensity.ToArray();
+        if (phaseDeg != 0)
+        {
+            // Dispersion part for a zero-order phase error: sum of Lorentzian dispersion profiles.
+            var render = SpectrumSimulator.RenderLines(system, lines, new WidthHz(widthHz));
+            var (c, s) = (Math.Cos(phaseDeg * Math.PI / 180), Math.Sin(phaseDeg * Math.PI / 180));
+            for (var i = 0; i < y.Length; i++)
+            {
+                var hz = simulated.Grid.HzAt(i);
+                double absorption = 0, dispersion = 0;
+                foreach (var l in render)
+                {
+                    var dx = hz - l.CentreHz;
+                    var h = l.FwhmHz / 2;
+                    absorption += l.Area / Math.PI * h / (dx * dx + h * h);
+                    dispersion += l.Area / Math.PI * dx / (dx * dx + h * h);
+                }
+                y[i] = absorption * c - dispersion * s;
+            }
+        }
+        if (noiseFraction > 0) NoiseGenerator.AddGaussian(y, noiseFraction * y.Max(), seed);
+        return new SpectrumTrace(simulated.Trace.ShiftPpm.ToArray(), y, simulated.Trace.ObserveMHz, "1H",
+            TraceOrigin.Describe("synthetic test trace (invented values)"));
+    }
+
+    public static SpectrumFitProblem Problem(SpinSystem start, SpectrumTrace trace, FitSetup setup, double widthHz)
+    {
+        var regions = setup.Regions ?? FitSetup.DefaultRegions(start, trace.ObserveMHz!.Value, widthHz);
+        return new SpectrumFitProblem(start, [new FitDataset(trace, regions, setup.Exclude)],
+            setup.BuildParameters(start, 1, widthHz), setup.Ties, Lineshape.Lorentzian);
+    }
+
+    /// <summary>The system with every shift moved by the given Hz and every coupling scaled.</summary>
+    public static SpinSystem Perturbed(SpinSystem system, Func<int, double> shiftHz, Func<int, double> couplingFactor) =>
+        SpinSystem.Create(system.Field,
+            system.Nuclei.Select((n, i) => n with { Shift = new ShiftPpm(n.Shift.Value + shiftHz(i) / system.Field.Value) }),
+            system.Couplings.Select((c, i) => c with { J = new CouplingHz(c.J.Value * couplingFactor(i)) }), system.Title);
+}
