@@ -106,7 +106,8 @@ public static class SpectrumFigure
                 ClipByYAxis = false,
             });
 
-        FigureLegend.AddAbove(model, font);
+        // One trace needs no legend; with sticks the legend says which is which.
+        if (hasSticks) FigureLegend.AddAbove(model, font);
         return model;
     }
 
