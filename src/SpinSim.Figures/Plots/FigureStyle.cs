@@ -1,0 +1,138 @@
+using OxyPlot;
+using OxyPlot.Axes;
+using OxyPlot.Series;
+using SpinSim.Figures.Rendering;
+
+namespace SpinSim.Figures.Plots;
+
+/// <summary>What all figures share: fonts, axes and line weights, so that they look alike side by side in a paper.</summary>
+internal static class FigureStyle
+{
+    /// <summary>OxyPlot sizes text in 1/96 inch; options give points (1/72 inch).</summary>
+    public const double UnitsPerPoint = 96.0 / 72.0;
+
+    public const double TraceThickness = 1.0;
+    public const double AxisThickness = 0.75;
+
+    public static double FontUnits(FigureOptions options) => options.FontSizePt * UnitsPerPoint;
+
+    /// <summary>A white model with the bundled font at the options' size and the given default title.</summary>
+    public static PlotModel NewModel(FigureOptions options, string defaultTitle)
+    {
+        options.Resolve(); // refuse bad options when the figure is built, not only when it is drawn
+        var font = FontUnits(options);
+        return new PlotModel
+        {
+            Title = options.Title ?? defaultTitle,
+            TitleFontSize = font * 1.15,
+            TitleFontWeight = FontWeights.Bold,
+            DefaultFont = BundledFont.FamilyName,
+            DefaultFontSize = font,
+            TextColor = FigurePalette.Ink,
+            TitleColor = FigurePalette.Ink,
+            Background = OxyColors.White,
+            PlotAreaBackground = OxyColors.Undefined,
+            // An open frame (axis lines only) reads better in print than a closed box.
+            PlotAreaBorderThickness = new OxyThickness(0),
+            Padding = new OxyThickness(font * 0.8),
+            IsLegendVisible = false,
+        };
+    }
+
+    /// <summary>The chemical-shift axis, high ppm on the left as is usual for NMR spectra.</summary>
+    public static LinearAxis PpmAxis(string nucleus, double minPpm, double maxPpm)
+    {
+        if (maxPpm <= minPpm) (minPpm, maxPpm) = (minPpm - 0.5, maxPpm + 0.5); // a single point still gets an axis
+        return new LinearAxis
+        {
+            Key = "ppm",
+            Position = AxisPosition.Bottom,
+            StartPosition = 1,
+            EndPosition = 0,
+            Minimum = minPpm,
+            Maximum = maxPpm,
+            Title = $"δ({NucleusLabel(nucleus)}) / ppm",
+            TickStyle = TickStyle.Outside,
+            AxislineStyle = LineStyle.Solid,
+            AxislineThickness = AxisThickness,
+            MajorGridlineStyle = LineStyle.None,
+            MinorGridlineStyle = LineStyle.None,
+            IsZoomEnabled = false,
+            IsPanEnabled = false,
+        };
+    }
+
+    /// <summary>A vertical axis that scales data but draws nothing: spectrum intensities are in arbitrary units.</summary>
+    public static LinearAxis HiddenVerticalAxis(string key, double min, double max, double start = 0, double end = 1) => new()
+    {
+        Key = key,
+        Position = AxisPosition.Left,
+        IsAxisVisible = false,
+        Minimum = min,
+        Maximum = max,
+        StartPosition = start,
+        EndPosition = end,
+        IsZoomEnabled = false,
+        IsPanEnabled = false,
+    };
+
+    /// <summary>A visible vertical axis for a panel occupying <paramref name="start"/> to <paramref name="end"/> of the plot height.</summary>
+    public static LinearAxis VerticalAxis(string key, string title, double min, double max, double start, double end) => new()
+    {
+        Key = key,
+        Position = AxisPosition.Left,
+        Title = title,
+        Minimum = min,
+        Maximum = max,
+        StartPosition = start,
+        EndPosition = end,
+        TickStyle = TickStyle.Outside,
+        AxislineStyle = LineStyle.Solid,
+        AxislineThickness = AxisThickness,
+        MajorGridlineStyle = LineStyle.None,
+        MinorGridlineStyle = LineStyle.None,
+        IsZoomEnabled = false,
+        IsPanEnabled = false,
+    };
+
+    public static LineSeries Line(IEnumerable<DataPoint> points, OxyColor color, LineStyle style, double thickness,
+        string yAxisKey, string title = "")
+    {
+        var series = new LineSeries
+        {
+            Color = color,
+            LineStyle = style,
+            StrokeThickness = thickness,
+            Title = title,
+            XAxisKey = "ppm",
+            YAxisKey = yAxisKey,
+            LineJoin = LineJoin.Round,
+            CanTrackerInterpolatePoints = false,
+        };
+        series.Points.AddRange(points);
+        return series;
+    }
+
+    /// <summary>Points of a trace in increasing ppm, so that lines are drawn in one sweep across the axis.</summary>
+    public static IEnumerable<DataPoint> Points(double[] ppm, double[] y)
+    {
+        var order = Enumerable.Range(0, ppm.Length).OrderBy(i => ppm[i]);
+        return order.Select(i => new DataPoint(ppm[i], y[i]));
+    }
+
+    /// <summary>"1H" as "¹H": mass numbers are written as superscripts.</summary>
+    public static string NucleusLabel(string nucleus)
+    {
+        const string superscripts = "⁰¹²³⁴⁵⁶⁷⁸⁹";
+        var digits = nucleus.TakeWhile(char.IsAsciiDigit).Count();
+        return string.Concat(nucleus[..digits].Select(c => superscripts[c - '0'])) + nucleus[digits..];
+    }
+
+    /// <summary>Smallest and largest value, ignoring nothing (inputs are finite by construction).</summary>
+    public static (double Min, double Max) Range(IEnumerable<double> values)
+    {
+        double min = double.PositiveInfinity, max = double.NegativeInfinity;
+        foreach (var v in values) { if (v < min) min = v; if (v > max) max = v; }
+        return (min, max);
+    }
+}

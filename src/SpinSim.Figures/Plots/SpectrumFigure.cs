@@ -1,0 +1,159 @@
+using OxyPlot;
+using OxyPlot.Annotations;
+using OxyPlot.Series;
+using SpinSim.Core.Engine;
+using SpinSim.Core.Model;
+using SpinSim.Core.Traces;
+using SpinSim.Figures.Rendering;
+
+namespace SpinSim.Figures.Plots;
+
+/// <summary>One transition drawn as a stick: its shift in ppm and its intensity relative to the others (any positive scale).</summary>
+public sealed record StickLine(double ShiftPpm, double Intensity);
+
+/// <summary>A label written above the spectrum at a shift, naming the nucleus or set that resonates there.</summary>
+public sealed record ShiftLabel(string Text, double ShiftPpm);
+
+/// <summary>A simulated spectrum: the trace, optionally the transitions as sticks below it, and labels at the shifts.</summary>
+public static class SpectrumFigure
+{
+    private const string TraceAxis = "trace", StickAxis = "sticks";
+
+    /// <summary>
+    /// The figure of <paramref name="trace"/> on a reversed ppm axis spanning the trace. With
+    /// <paramref name="sticks"/>, a panel below shows one stick per transition scaled to the tallest; with
+    /// <paramref name="labels"/>, each text is written above the trace at its shift, raised a row where
+    /// neighbours would overlap. Intensities are in arbitrary units, so no intensity axis is drawn.
+    /// </summary>
+    /// <exception cref="ArgumentException">A stick or label with a non-finite value, or invalid options.</exception>
+    public static PlotModel Simulated(SpectrumTrace trace, IReadOnlyList<StickLine>? sticks, IReadOnlyList<ShiftLabel>? labels,
+        FigureOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(trace);
+        ArgumentNullException.ThrowIfNull(options);
+        sticks ??= [];
+        labels ??= [];
+        foreach (var s in sticks)
+            if (!double.IsFinite(s.ShiftPpm) || !double.IsFinite(s.Intensity))
+                throw new ArgumentException($"stick at {s.ShiftPpm} ppm with intensity {s.Intensity}: both must be finite", nameof(sticks));
+        foreach (var l in labels)
+            if (l.Text is null || !double.IsFinite(l.ShiftPpm))
+                throw new ArgumentException($"label '{l.Text}' at {l.ShiftPpm} ppm: text and a finite shift are required", nameof(labels));
+
+        var size = options.Resolve();
+        var font = FigureStyle.FontUnits(options);
+        var field = trace.ObserveMHz is { } mhz ? FormattableString.Invariant($" at {mhz:0.#} MHz") : "";
+        var model = FigureStyle.NewModel(options, $"Simulated {FigureStyle.NucleusLabel(trace.Nucleus)} spectrum{field}");
+
+        var (minPpm, maxPpm) = FigureStyle.Range(trace.ShiftPpm);
+        model.Axes.Add(FigureStyle.PpmAxis(trace.Nucleus, minPpm, maxPpm));
+
+        // Sticks get the lower quarter of the plot height, the trace the rest.
+        var hasSticks = sticks.Count > 0;
+        var traceStart = hasSticks ? 0.3 : 0.0;
+
+        var (yMin, yMax) = FigureStyle.Range(trace.Intensity);
+        yMin = Math.Min(0, yMin);
+        if (yMax <= yMin) yMax = yMin + 1;
+
+        // Labels: rows chosen by horizontal overlap, estimated from the figure width; heights from the trace.
+        var plotWidthUnits = size.WidthUnits * 0.85;
+        var ppmPerUnit = (maxPpm - minPpm) / plotWidthUnits;
+        var placed = PlaceLabels(trace, labels, font, ppmPerUnit);
+        var lineHeight = BundledFont.LineHeight(font);
+        var rows = placed.Count == 0 ? 0 : placed.Max(p => p.Row) + 1;
+        var traceHeightUnits = size.HeightUnits * 0.7 * (1 - traceStart);
+        var headroom = Math.Min(0.6, (rows * lineHeight + font * 0.5) / traceHeightUnits);
+        var top = yMax + (yMax - yMin) * (0.05 + headroom / (1 - headroom));
+        model.Axes.Add(FigureStyle.HiddenVerticalAxis(TraceAxis, yMin - 0.02 * (yMax - yMin), top, traceStart, 1));
+
+        model.Series.Add(FigureStyle.Line(FigureStyle.Points(trace.ShiftPpm, trace.Intensity), FigurePalette.Simulated,
+            LineStyle.Solid, FigureStyle.TraceThickness, TraceAxis, "simulated spectrum"));
+
+        if (hasSticks)
+        {
+            var tallest = sticks.Max(s => Math.Abs(s.Intensity));
+            if (tallest == 0) tallest = 1;
+            model.Axes.Add(FigureStyle.HiddenVerticalAxis(StickAxis, -0.02, 1.05, 0, 0.25));
+            var stems = new StemSeries
+            {
+                Color = FigurePalette.Sticks,
+                StrokeThickness = FigureStyle.TraceThickness * 0.75,
+                Base = 0,
+                Title = "transitions",
+                XAxisKey = "ppm",
+                YAxisKey = StickAxis,
+            };
+            stems.Points.AddRange(sticks.OrderBy(s => s.ShiftPpm).Select(s => new DataPoint(s.ShiftPpm, s.Intensity / tallest)));
+            model.Series.Add(stems);
+        }
+
+        foreach (var p in placed)
+            model.Annotations.Add(new TextAnnotation
+            {
+                Text = p.Text,
+                TextPosition = new DataPoint(p.ShiftPpm, p.PeakTop),
+                Offset = new ScreenVector(0, -(font * 0.4 + p.Row * lineHeight)),
+                TextHorizontalAlignment = HorizontalAlignment.Center,
+                TextVerticalAlignment = VerticalAlignment.Bottom,
+                StrokeThickness = 0,
+                Background = OxyColors.Undefined,
+                TextColor = FigurePalette.Ink,
+                FontSize = font,
+                XAxisKey = "ppm",
+                YAxisKey = TraceAxis,
+                // Raised labels may stand above the axis maximum; clipping them would hide the name of a peak.
+                ClipByYAxis = false,
+            });
+
+        // One trace needs no legend; with sticks the legend says which is which.
+        if (hasSticks) FigureLegend.AddAbove(model, font);
+        return model;
+    }
+
+    /// <summary>Draws <see cref="Simulated"/> into <paramref name="output"/>.</summary>
+    public static void Render(SpectrumTrace trace, IReadOnlyList<StickLine>? sticks, IReadOnlyList<ShiftLabel>? labels,
+        FigureOptions options, FigureFormat format, Stream output) =>
+        FigureRenderer.Render(Simulated(trace, sticks, labels, options), format, options, output);
+
+    /// <summary>Sticks for the lines of an engine result.</summary>
+    public static IReadOnlyList<StickLine> SticksFrom(LineList lines) =>
+        lines.Lines.Select(l => new StickLine(l.ShiftPpm, l.Intensity)).ToArray();
+
+    /// <summary>One label per entry of the observed isotope, its id at its shift.</summary>
+    public static IReadOnlyList<ShiftLabel> LabelsFrom(SpinSystem system) =>
+        system.Nuclei.Where(n => n.Isotope == system.Observed).Select(n => new ShiftLabel(n.Id, n.Shift.Value)).ToArray();
+
+    private sealed record PlacedLabel(string Text, double ShiftPpm, double PeakTop, int Row);
+
+    // Greedy rows from left to right on the page (high ppm first): a label takes the lowest row whose last
+    // label ends before it starts. The estimate of the text width in ppm only has to be roughly right.
+    private static List<PlacedLabel> PlaceLabels(SpectrumTrace trace, IReadOnlyList<ShiftLabel> labels, double font, double ppmPerUnit)
+    {
+        var placed = new List<PlacedLabel>();
+        var rowEnds = new List<double>(); // lowest ppm reached by the last label of each row
+        var (minPpm, maxPpm) = FigureStyle.Range(trace.ShiftPpm);
+        foreach (var label in labels.Where(l => l.ShiftPpm >= minPpm && l.ShiftPpm <= maxPpm).OrderByDescending(l => l.ShiftPpm))
+        {
+            var halfWidth = (BundledFont.MeasureWidth(label.Text, font) / 2 + font * 0.3) * ppmPerUnit;
+            var row = rowEnds.FindIndex(end => end > label.ShiftPpm + halfWidth);
+            if (row < 0) { row = rowEnds.Count; rowEnds.Add(0); }
+            rowEnds[row] = label.ShiftPpm - halfWidth;
+            placed.Add(new PlacedLabel(label.Text, label.ShiftPpm, LocalMaximum(trace, label.ShiftPpm, Math.Max(halfWidth, 2 * ppmPerUnit)), row));
+        }
+        return placed;
+    }
+
+    private static double LocalMaximum(SpectrumTrace trace, double ppm, double halfWindow)
+    {
+        var best = double.NegativeInfinity;
+        for (var i = 0; i < trace.Count; i++)
+            if (Math.Abs(trace.ShiftPpm[i] - ppm) <= halfWindow && trace.Intensity[i] > best) best = trace.Intensity[i];
+        if (double.IsNegativeInfinity(best)) // window between two points: take the nearest
+        {
+            var nearest = Enumerable.Range(0, trace.Count).MinBy(i => Math.Abs(trace.ShiftPpm[i] - ppm));
+            best = trace.Intensity[nearest];
+        }
+        return Math.Max(best, 0);
+    }
+}

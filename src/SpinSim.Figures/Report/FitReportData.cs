@@ -1,0 +1,23 @@
+namespace SpinSim.Figures.Report;
+
+/// <summary>
+/// Correlation coefficients between fitted parameters: <see cref="Matrix"/>[i, j] between
+/// <see cref="Names"/>[i] and <see cref="Names"/>[j], in [-1, 1], square with one row per name.
+/// </summary>
+public sealed record ParameterCorrelation(IReadOnlyList<string> Names, double[,] Matrix);
+
+/// <summary>
+/// Everything a fit report shows. <see cref="SvgFigure"/> is SVG markup (for instance the fit figure rendered
+/// as SVG), embedded in the page; empty for none. <see cref="Inputs"/> names each input file with the
+/// SHA-256 of its bytes in hex, so that a reader can check the report belongs to the files at hand.
+/// </summary>
+public sealed record FitReportData(
+    string Title,
+    string SvgFigure,
+    IReadOnlyList<ParameterRow> Parameters,
+    IReadOnlyList<string> Warnings,
+    IReadOnlyList<(string Name, string Sha256)> Inputs,
+    string Version,
+    DateTimeOffset Created,
+    IReadOnlyList<(string Label, string Value)> Statistics,
+    ParameterCorrelation? Correlation = null);

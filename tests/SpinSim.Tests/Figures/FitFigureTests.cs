@@ -1,0 +1,97 @@
+using SpinSim.Figures;
+using SpinSim.Figures.Plots;
+
+namespace SpinSim.Tests.Figures;
+
+public sealed class FitFigureTests
+{
+    private static readonly FigureOptions Options = new() { WidthMm = 170, HeightMm = 110, Dpi = 200 };
+
+    private static PixelProbe Draw(FitFigureData data, string name, FigureOptions? options = null)
+    {
+        options ??= Options;
+        var model = FitFigure.Create(data, options);
+        var png = FigureRenderer.Render(model, FigureFormat.Png, options);
+        FigureSamples.Keep(name, png);
+        return new PixelProbe(png, model, options.Dpi);
+    }
+
+    [Fact]
+    public void Measured_and_fitted_peaks_are_drawn_at_the_shift_of_the_tallest_peak()
+    {
+        using var probe = Draw(FigureSamples.Fit(), "fit.png");
+        var area = probe.PlotArea;
+        var (top, bottom) = probe.Band("main");
+        var region = new SkiaSharp.SKRectI(area.Left + 4, top, area.Right - 4, bottom);
+        var expected = probe.Column("ppm", FigureSamples.TallestPpm);
+
+        var measured = probe.Topmost(region, PixelProbe.IsDark);
+        var fitted = probe.Topmost(region, PixelProbe.Near(FigurePalette.Fitted, 90));
+
+        Assert.NotNull(measured);
+        Assert.NotNull(fitted);
+        Assert.InRange(measured.Value.Column, expected - 4, expected + 4);
+        Assert.InRange(fitted.Value.Column, expected - 4, expected + 4);
+    }
+
+    [Fact]
+    public void Residual_panel_lies_below_the_spectra_and_is_drawn()
+    {
+        using var probe = Draw(FigureSamples.Fit(), "fit-residual.png");
+        var (mainTop, mainBottom) = probe.Band("main");
+        var (residualTop, residualBottom) = probe.Band("residual");
+        Assert.True(residualTop > mainBottom, "the residual panel must sit below the spectra");
+
+        var area = probe.PlotArea;
+        var drawn = probe.Count(new(area.Left + 4, residualTop, area.Right - 4, residualBottom), PixelProbe.Near(FigurePalette.Residual, 90));
+        Assert.True(drawn > 500, $"only {drawn} residual pixels in the lower panel");
+    }
+
+    [Fact]
+    public void Parameter_table_is_drawn_beside_the_plot()
+    {
+        using var probe = Draw(FigureSamples.Fit(), "fit-table.png");
+        var area = probe.PlotArea;
+        var text = probe.Count(new(area.Right + 5, area.Top, probe.Width, area.Bottom), PixelProbe.IsDark);
+        Assert.True(text > 1000, $"only {text} dark pixels where the table should be");
+    }
+
+    [Fact]
+    public void Text_is_drawn_in_the_axis_label_areas()
+    {
+        using var probe = Draw(FigureSamples.Fit(), "fit-axes.png");
+        var area = probe.PlotArea;
+        Assert.True(probe.Count(new(area.Left, area.Bottom + 3, area.Right, probe.Height), PixelProbe.IsDark) > 800);
+        Assert.True(probe.Count(new(0, area.Top, area.Left - 3, area.Bottom), PixelProbe.IsDark) > 500);
+    }
+
+    [Fact]
+    public void A_long_parameter_list_is_shortened_to_fit_the_height()
+    {
+        var options = new FigureOptions { WidthMm = 170, HeightMm = 80, Dpi = 200 };
+        var model = FitFigure.Create(FigureSamples.Fit(parameters: 80), options);
+        FigureSamples.Keep("fit-many-parameters.png", FigureRenderer.Render(model, FigureFormat.Png, options));
+        var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(model, FigureFormat.Svg, options));
+        Assert.Contains("more", svg);
+        Assert.DoesNotContain("δ(H80)", svg);
+    }
+
+    [Fact]
+    public void Arrays_off_the_measured_axis_are_refused()
+    {
+        var data = FigureSamples.Fit() with { Residual = new double[10] };
+        var e = Assert.Throws<ArgumentException>(() => FitFigure.Create(data, Options));
+        Assert.Contains("Residual has 10 points", e.Message);
+    }
+
+    [Fact]
+    public void Small_residual_keeps_the_scale_of_the_spectra()
+    {
+        var model = FitFigure.Create(FigureSamples.Fit(), Options);
+        var main = model.Axes.Single(a => a.Key == "main");
+        var residual = model.Axes.Single(a => a.Key == "residual");
+        var mainPerFraction = (main.Maximum - main.Minimum) / (main.EndPosition - main.StartPosition);
+        var residualPerFraction = (residual.Maximum - residual.Minimum) / (residual.EndPosition - residual.StartPosition);
+        Assert.Equal(mainPerFraction, residualPerFraction, 9);
+    }
+}
