@@ -16,6 +16,13 @@ internal sealed class SpectralModel : ILeastSquaresModel
     /// <summary>Lines are evaluated within this many widths of their centre (Lorentzian tail beyond: 0.16 %).</summary>
     private const double CutoffWidths = 200;
 
+    /// <summary>
+    /// Over the outer part of the cut-off window contributions fade out smoothly (raised cosine), so that the model stays
+    /// differentiable when a line moves and points enter or leave its window; a hard edge would put steps into the
+    /// finite-difference derivatives.
+    /// </summary>
+    private const double TaperStart = 0.8;
+
     private readonly SpinSystem _system;
     private readonly ParameterLayout _layout;
     private readonly IReadOnlyList<PreparedData> _data;
@@ -182,6 +189,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
         var reach = CutoffWidths * (lorentzian + gaussian);
         var first = LowerBound(hz, centreHz - reach);
         var last = LowerBound(hz, centreHz + reach);
+        var taper = TaperStart * reach;
         if (gaussian == 0)
         {
             var half = lorentzian / 2;
@@ -191,7 +199,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
             {
                 var dx = hz[i] - centreHz;
                 var inv = a / (dx * dx + h2);
-                y[i] += inv * (half * cos - dx * sin);
+                y[i] += inv * (half * cos - dx * sin) * Taper(Math.Abs(dx), taper, reach);
             }
             return;
         }
@@ -201,9 +209,12 @@ internal sealed class SpectralModel : ILeastSquaresModel
         for (var i = first; i < last; i++)
         {
             var w = Faddeeva.W(new Complex((hz[i] - centreHz) / denominator, lorentzian / 2 / denominator));
-            y[i] += norm * (w.Real * cos - w.Imaginary * sin);
+            y[i] += norm * (w.Real * cos - w.Imaginary * sin) * Taper(Math.Abs(hz[i] - centreHz), taper, reach);
         }
     }
+
+    private static double Taper(double distance, double start, double end) =>
+        distance <= start ? 1 : distance >= end ? 0 : 0.5 * (1 + Math.Cos(Math.PI * (distance - start) / (end - start)));
 
     private static int LowerBound(double[] sorted, double value)
     {
