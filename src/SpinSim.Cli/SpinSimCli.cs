@@ -26,6 +26,7 @@ public static class SpinSimCli
         root.Subcommands.Add(CheckCommand.Build(io));
         root.Subcommands.Add(SimulateCommand.Build(io));
         root.Subcommands.Add(InspectCommand.Build(io));
+        root.Subcommands.Add(FitCommand.Build(io));
 
         var parse = root.Parse(args);
         if (parse.Errors.Count > 0)
@@ -51,7 +52,7 @@ public static class SpinSimCli
     }
 
     private static bool IsUserError(Exception e) => e is SpinSystemFileException or SpinSystemException or SystemTooLargeException
-        or OutputFileException or UserInputException or SpinSim.Formats.SpectrumFileException;
+        or OutputFileException or UserInputException or SpinSim.Formats.SpectrumFileException or SpinSim.Formats.Fitting.FitSetupException;
 }
 
 /// <summary>Where commands write and how they are stopped.</summary>

@@ -113,11 +113,20 @@ internal static class FigureStyle
         return series;
     }
 
-    /// <summary>Points of a trace in increasing ppm, so that lines are drawn in one sweep across the axis.</summary>
+    /// <summary>
+    /// Points of a trace in increasing ppm, so that lines are drawn in one sweep across the axis. Where points are missing
+    /// (between fitted regions, or an excluded interval) the line is broken rather than drawn across the gap.
+    /// </summary>
     public static IEnumerable<DataPoint> Points(double[] ppm, double[] y)
     {
-        var order = Enumerable.Range(0, ppm.Length).OrderBy(i => ppm[i]);
-        return order.Select(i => new DataPoint(ppm[i], y[i]));
+        var order = Enumerable.Range(0, ppm.Length).OrderBy(i => ppm[i]).ToArray();
+        var steps = order.Skip(1).Select((i, k) => ppm[i] - ppm[order[k]]).Where(d => d > 0).Order().ToArray();
+        var gap = steps.Length == 0 ? double.PositiveInfinity : 10 * steps[steps.Length / 2];
+        for (var k = 0; k < order.Length; k++)
+        {
+            if (k > 0 && ppm[order[k]] - ppm[order[k - 1]] > gap) yield return DataPoint.Undefined;
+            yield return new DataPoint(ppm[order[k]], y[order[k]]);
+        }
     }
 
     /// <summary>"1H" as "¹H": mass numbers are written as superscripts.</summary>

@@ -13,8 +13,8 @@ public sealed record SpinSystemDocument(
     IReadOnlyList<string> Warnings,
     FitSection? Fit = null);
 
-/// <summary>The raw [fit] section of a spin-system file: key/value pairs with their line numbers.</summary>
-public sealed record FitSection(IReadOnlyList<FitEntry> Entries);
+/// <summary>The raw [fit] section of a spin-system or fit file: key/value pairs with their line numbers.</summary>
+public sealed record FitSection(string Path, IReadOnlyList<FitEntry> Entries);
 
 /// <summary>One value of a [fit] section. Value is a double, long, string, bool, or an object[] of those.</summary>
 public sealed record FitEntry(string Table, string Key, object Value, int Line);

@@ -106,7 +106,35 @@ public static class SpinSystemToml
         }
         var system = SpinSystem.Create(new FieldMHz(fieldMHz.Value), nuclei, couplings, title, observed);
         return new SpinSystemDocument(path, system, defaultWidth, SpinSystemRules.Warnings(system),
-            fitEntries.Count > 0 ? new FitSection(fitEntries) : null);
+            fitEntries.Count > 0 ? new FitSection(path, fitEntries) : null);
+    }
+
+    /// <summary>Reads a fit file: a TOML file holding only a [fit] table (and [fit.bounds]), the same keys as in a system file.</summary>
+    public static FitSection ReadFitFile(string path)
+    {
+        string text;
+        try { text = File.ReadAllText(path); }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new SpinSystemFileException(path, null, $"cannot read the fit file ({e.Message})", "Check the path and the file's permissions");
+        }
+        var doc = SyntaxParser.Parse(text, path, true);
+        if (doc.HasErrors)
+        {
+            var first = doc.Diagnostics.First(d => d.Kind == DiagnosticMessageKind.Error);
+            throw new SpinSystemFileException(path, first.Span.Start.Line + 1, $"not valid TOML: {first.Message}", "Fix the syntax at that line");
+        }
+        if (doc.KeyValues.ChildrenCount > 0)
+            throw new SpinSystemFileException(path, Line(doc.KeyValues.First()), "a fit file holds only a [fit] table", "Put the settings under a [fit] line");
+        var entries = new List<FitEntry>();
+        foreach (var table in doc.Tables)
+        {
+            var name = KeyOf(table.Name!);
+            if (name != "fit" && !name.StartsWith("fit.", StringComparison.Ordinal))
+                throw new SpinSystemFileException(path, table.Span.Start.Line + 1, $"unknown table [{name}] in a fit file", "Use [fit] and [fit.bounds]");
+            foreach (var kv in table.Items) entries.Add(new FitEntry(name, KeyOf(kv.Key!), Value(path, kv.Value!, Line(kv)), Line(kv)));
+        }
+        return new FitSection(path, entries);
     }
 
     private static Nucleus ReadNucleus(string path, TableSyntaxBase table, int tableLine)

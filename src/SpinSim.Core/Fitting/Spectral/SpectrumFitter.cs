@@ -69,6 +69,8 @@ public static class SpectrumFitter
 
         // Every start runs every stage on thinned points (>= 10 per linewidth at the last stage); the best is then
         // polished on all points, and that run gives the reported statistics.
+        // The broadened, thinned data of each stage is the same for every start.
+        var stageData = stages.Select(stage => prepared.Select((p, d) => p.Broadened(problem.Data[d].Trace, stage.BroadeningHz, stage.Stride)).ToArray()).ToArray();
         var outcomes = new (double[] Free, LeastSquaresResult Result)[starts.Count];
         Parallel.For(0, starts.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
         {
@@ -78,7 +80,7 @@ public static class SpectrumFitter
             {
                 if (options.Cancel.IsCancellationRequested && last is not null) break;
                 var stage = stages[k];
-                last = RunStage(problem, layout, prepared, engine, stage, x, lower, upper, options, s, k, stages.Count);
+                last = RunStage(problem, layout, stageData[k], engine, stage, x, lower, upper, options, s, k, stages.Count);
                 x = last.Parameters;
                 if (Environment.GetEnvironmentVariable("SPINSIM_FIT_DEBUG") == "1")
                     Console.Error.WriteLine($"start {s} stage {k} W {stage.BroadeningHz:0.0} stride {stage.Stride} hold {stage.HoldCouplings}: cost {last.ResidualSumOfSquares:E3} it {last.Iterations} x {string.Join(" ", x.Select(v => v.ToString("0.####")))}");
@@ -97,6 +99,7 @@ public static class SpectrumFitter
         var polish = options.Cancel.IsCancellationRequested
             ? best.Result
             : RunStage(problem, layout, prepared, engine, new Stage(0, 1, false), best.Free, lower, upper, options, -1, stages.Count, stages.Count + 1);
+
         var finalFree = polish.ResidualSumOfSquares <= best.Result.ResidualSumOfSquares || !polish.Converged ? polish.Parameters : best.Free;
         var finalModel = new SpectralModel(problem.System, layout, prepared, problem.Shape, engine, 0);
         return SpectrumFitResult.Build(problem, layout, finalModel, polish.Parameters, polish, starts.Count, reached,
@@ -150,11 +153,10 @@ public static class SpectrumFitter
     /// </summary>
     private sealed record Stage(double BroadeningHz, int Stride, bool HoldCouplings);
 
-    private static LeastSquaresResult RunStage(SpectrumFitProblem problem, ParameterLayout layout, PreparedData[] prepared, EngineOptions engine,
+    private static LeastSquaresResult RunStage(SpectrumFitProblem problem, ParameterLayout layout, PreparedData[] data, EngineOptions engine,
         Stage stage, double[] x, double[] lower, double[] upper, SpectrumFitOptions options, int start, int index, int count)
     {
-        var data = prepared.Select((p, d) => p.Broadened(problem.Data[d].Trace, stage.BroadeningHz, stage.Stride)).ToArray();
-        var model = new SpectralModel(problem.System, layout, data, problem.Shape, engine, stage.BroadeningHz) { Steps = Steps(layout, x, prepared) };
+        var model = new SpectralModel(problem.System, layout, data, problem.Shape, engine, stage.BroadeningHz) { Steps = Steps(layout, x, data) };
         var (lo, hi) = ((double[])lower.Clone(), (double[])upper.Clone());
         for (var f = 0; f < layout.FreeCount; f++)
         {

@@ -1,0 +1,226 @@
+using System.CommandLine;
+using System.Globalization;
+using System.Security.Cryptography;
+using SpinSim.Core.Fitting.Spectral;
+using SpinSim.Core.Spectrum;
+using SpinSim.Core.Traces;
+using SpinSim.Core.Units;
+using SpinSim.Figures;
+using SpinSim.Figures.Plots;
+using SpinSim.Figures.Report;
+using SpinSim.Formats;
+using SpinSim.Formats.Fitting;
+using SpinSim.Formats.Output;
+using SpinSim.Formats.SpinSystems;
+
+namespace SpinSim.Cli.Commands;
+
+/// <summary><c>spinsim fit SYSTEM --data MEASURED</c>: shifts and couplings from a measured trace by least squares.</summary>
+public static class FitCommand
+{
+    public static Command Build(CommandIo io)
+    {
+        var file = new Argument<string>("system") { Description = "Spin-system file with the starting values (.toml or .json); its [fit] table, if any, is the fit setup" };
+        var dataFiles = new Option<string[]>("--data")
+        {
+            Description = "Measured spectrum (.jdx, .dx, .csv, .tsv, .txt); give it more than once for a joint fit of traces at different fields",
+            Required = true,
+            AllowMultipleArgumentsPerToken = false,
+        };
+        var setupFile = new Option<string?>("--setup") { Description = "Fit file with a [fit] table; replaces the [fit] table of the system file" };
+        var linewidth = new Option<double?>("--linewidth") { Description = "Starting linewidth (FWHM) in Hz (default: the file's linewidth_hz or 1 Hz)" };
+        var shape = new Option<string?>("--shape") { Description = "Lineshape: lorentzian (default), gaussian or voigt" };
+        shape.AcceptOnlyFromAmong("lorentzian", "gaussian", "voigt");
+        var starts = new Option<int?>("--starts") { Description = "Number of starts (the given values plus random perturbations); default 8" };
+        var seed = new Option<int>("--seed") { Description = "Seed for the perturbed starts", DefaultValueFactory = _ => 1 };
+        var report = new Option<string?>("--report") { Description = "Write the fit report as JSON" };
+        var writeSystem = new Option<string?>("--write-system") { Description = "Write the best-fit system as a TOML file that simulate accepts" };
+        var html = new Option<string?>("--html") { Description = "Write a self-contained HTML report with the figure, parameters, warnings and input hashes" };
+        var quiet = new Option<bool>("--quiet", "-q") { Description = "No progress on stderr" };
+        var data = new DataFileOptions();
+        var figure = new FigureChoice();
+        var engine = new EngineChoice();
+        var command = new Command("fit", "Fit shifts, couplings, linewidth, scale and baseline to a measured spectrum by nonlinear least squares")
+        {
+            file, dataFiles, setupFile, linewidth, shape, starts, seed, report, writeSystem, html, quiet,
+        };
+        data.AddTo(command);
+        figure.AddTo(command);
+        engine.AddTo(command);
+
+        command.SetAction(parse =>
+        {
+            var systemPath = parse.GetValue(file)!;
+            var document = SpinSystemFiles.Read(systemPath);
+            var system = document.System;
+            foreach (var w in document.Warnings) io.Error.WriteLine($"warning: {w}");
+            var paths = parse.GetValue(dataFiles)!;
+            var delimited = data.Read(parse);
+            var traces = new List<SpectrumTrace>();
+            foreach (var p in paths)
+            {
+                var t = SpectrumFiles.Read(p, delimited);
+                foreach (var w in t.Origin.Warnings) io.Error.WriteLine($"warning: {p}: {w}");
+                if (t.Nucleus != system.Observed.Symbol)
+                    throw new UserInputException($"{p}: the trace is a {t.Nucleus} spectrum but the system observes {system.Observed}");
+                if (t.ObserveMHz is null)
+                {
+                    var mhz = system.Observed.ObserveMHz(system.Field);
+                    io.Error.WriteLine($"warning: {p}: no observe frequency in the file; using the system's {mhz:0.###} MHz (give --observe-mhz to set it)");
+                    t = new SpectrumTrace(t.ShiftPpm.ToArray(), t.Intensity.ToArray(), mhz, t.Nucleus, t.Origin);
+                }
+                traces.Add(t);
+            }
+
+            var section = parse.GetValue(setupFile) is { } setupPath ? SpinSystemToml.ReadFitFile(setupPath) : document.Fit;
+            var settings = FitSetupReader.Read(section, system, traces.Count);
+            var setup = settings.Setup;
+            if (parse.GetValue(starts) is { } n)
+            {
+                if (n is < 1 or > 64) throw new UserInputException($"--starts must be from 1 to 64, got {n}");
+                setup = setup with { Starts = n };
+            }
+            var width = parse.GetValue(linewidth) ?? document.DefaultWidth?.Value ?? SimulateCommand.FallbackLinewidthHz;
+            if (!(width > 0 && double.IsFinite(width))) throw new UserInputException($"--linewidth must be above 0 Hz, got {width}");
+            var lineshape = parse.GetValue(shape) switch
+            {
+                "gaussian" => Lineshape.Gaussian,
+                "voigt" => Lineshape.Voigt(),
+                "lorentzian" => Lineshape.Lorentzian,
+                _ => settings.Shape ?? Lineshape.Lorentzian,
+            };
+
+            var datasets = new List<FitDataset>();
+            for (var d = 0; d < traces.Count; d++)
+            {
+                var regions = setup.Regions ?? FitSetup.DefaultRegions(system, traces[d].ObserveMHz!.Value, width);
+                var covered = traces[d].ShiftPpm.Count(x => regions.Any(r => r.Contains(x)) && !setup.Exclude.Any(r => r.Contains(x)));
+                if (covered < 10)
+                    throw new UserInputException($"{paths[d]}: only {covered} points of the trace lie in the fitted regions ({string.Join("; ", regions)}); " +
+                                                 "check the file's ppm axis or give regions_ppm in the [fit] table");
+                datasets.Add(new FitDataset(traces[d], regions, setup.Exclude));
+            }
+            var problem = new SpectrumFitProblem(system, datasets, setup.BuildParameters(system, traces.Count, width), setup.Ties, lineshape);
+
+            var progress = parse.GetValue(quiet) ? null : new ThrottledProgress(io.Error);
+            SpectrumFitResult result;
+            try
+            {
+                result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed),
+                    Progress: progress, Cancel: io.Cancel, Engine: engine.Read(parse) with { RelativeIntensityFloor = 1e-13 }));
+            }
+            catch (ArgumentException e) { throw new UserInputException(e.Message); }
+            progress?.Finish();
+
+            PrintReport(io.Out, result, systemPath, paths);
+
+            var inputs = new[] { systemPath }.Concat(paths).Concat(parse.GetValue(setupFile) is { } sp ? [sp] : Array.Empty<string>()).ToArray();
+            var hashes = inputs.Select(p => (Path.GetFileName(p), Sha256(p))).ToArray();
+            var created = DateTimeOffset.UtcNow;
+            if (parse.GetValue(report) is { } reportPath)
+            {
+                AtomicFile.Write(reportPath, w => w.Write(FitReportJson.Write(result, hashes, Versions.Current, created)), inputs);
+                io.Out.WriteLine($"report written to {reportPath}");
+            }
+            if (parse.GetValue(writeSystem) is { } outSystem)
+            {
+                var header = new[]
+                {
+                    $"Best-fit system from SpinSim {Versions.Current}, {created:yyyy-MM-dd HH:mm} UTC",
+                    $"fitted to {string.Join(", ", paths.Select(Path.GetFileName))}; start values from {Path.GetFileName(systemPath)}",
+                    $"converged: {result.Converged}; rms {result.Rms:G4} of the tallest point; see the fit report for standard errors",
+                };
+                AtomicFile.Write(outSystem, w => w.Write(SpinSystemToml.Write(result.FittedSystem, result.FittedWidth ?? document.DefaultWidth, header)), inputs);
+                io.Out.WriteLine($"best-fit system written to {outSystem}");
+            }
+            var figureOptions = figure.Options(parse, $"Fit of {Path.GetFileName(systemPath)}");
+            if (parse.GetValue(figure.Path) is { } figurePath)
+            {
+                FigureChoice.Write(figurePath, FitFigure.Create(FigureData(result, systemPath), figureOptions), figureOptions, inputs);
+                io.Out.WriteLine($"figure written to {figurePath}");
+            }
+            if (parse.GetValue(html) is { } htmlPath)
+            {
+                var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(FitFigure.Create(FigureData(result, systemPath), figureOptions), FigureFormat.Svg, figureOptions));
+                var page = HtmlFitReport.Render(new FitReportData(
+                    $"SpinSim fit of {Path.GetFileName(systemPath)}", svg, Rows(result), result.Warnings, hashes, Versions.Current, created,
+                    Statistics(result), new ParameterCorrelation(result.FreeNames, result.Correlation)));
+                AtomicFile.Write(htmlPath, w => w.Write(page), inputs);
+                io.Out.WriteLine($"HTML report written to {htmlPath}");
+            }
+            return result.Stopped ? SpinSimCli.UserError : SpinSimCli.Success;
+        });
+        return command;
+    }
+
+    internal static FitFigureData FigureData(SpectrumFitResult result, string systemPath)
+    {
+        var t = result.Traces[0];
+        return new FitFigureData(t.Measured, t.Model, t.Residual, Rows(result),
+            $"Fit of {Path.GetFileName(systemPath)}");
+    }
+
+    internal static IReadOnlyList<ParameterRow> Rows(SpectrumFitResult result) =>
+        result.Parameters.Where(p => p.TiedWith is null || string.CompareOrdinal(p.Name, p.TiedWith.Split(", ")[0]) < 0)
+            .Select(p => new ParameterRow(p.TiedWith is null ? p.Name : $"{p.Name} (= {p.TiedWith})", Format(p.Value, p.Kind),
+                !p.Varied ? "fixed" : double.IsFinite(p.StdError) ? p.StdError.ToString("G2", CultureInfo.InvariantCulture) : "undetermined", p.Unit)).ToList();
+
+    private static IReadOnlyList<(string Label, string Value)> Statistics(SpectrumFitResult r) =>
+    [
+        ("converged", r.Converged ? "yes" : "no"),
+        ("stopped because", r.StopReason),
+        ("RMS residual (fraction of tallest point)", r.Rms.ToString("G4", CultureInfo.InvariantCulture)),
+        ("R-factor", r.RFactor.ToString("G4", CultureInfo.InvariantCulture)),
+        ("points", r.Points.ToString(CultureInfo.InvariantCulture)),
+        ("iterations (final run)", r.Iterations.ToString(CultureInfo.InvariantCulture)),
+        ("starts reaching the best optimum", $"{r.StartsAtBest} of {r.Starts}"),
+    ];
+
+    private static string Format(double v, ParameterKind kind) => kind switch
+    {
+        ParameterKind.ShiftPpm => v.ToString("0.000000", CultureInfo.InvariantCulture),
+        ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz or ParameterKind.PhaseDeg => v.ToString("0.0000", CultureInfo.InvariantCulture),
+        _ => v.ToString("G5", CultureInfo.InvariantCulture),
+    };
+
+    private static void PrintReport(TextWriter o, SpectrumFitResult r, string systemPath, IReadOnlyList<string> data)
+    {
+        o.WriteLine($"fit of {systemPath} to {string.Join(", ", data)}");
+        o.WriteLine($"{(r.Converged ? "converged" : "NOT converged")}: {r.StopReason}");
+        o.WriteLine($"rms residual {r.Rms:G4} (fraction of the tallest point), R-factor {r.RFactor:G4}, {r.Points} points, " +
+                    $"{r.Iterations} iterations in the final run, {r.StartsAtBest} of {r.Starts} starts reached the best optimum");
+        o.WriteLine();
+        o.WriteLine($"  {"parameter",-28} {"value",14} {"std error",12}  unit");
+        foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError,12}  {row.Unit}");
+        o.WriteLine();
+        o.WriteLine("Standard errors assume independent points; neighbouring points of a spectrum are correlated, so they are optimistic.");
+        foreach (var w in r.Warnings) o.WriteLine($"warning: {w}");
+    }
+
+    private static string Sha256(string path)
+    {
+        using var stream = File.OpenRead(path);
+        return Convert.ToHexStringLower(SHA256.HashData(stream));
+    }
+
+    /// <summary>Progress on stderr at most twice a second.</summary>
+    private sealed class ThrottledProgress(TextWriter error) : IProgress<FitProgress>
+    {
+        private readonly System.Diagnostics.Stopwatch _clock = System.Diagnostics.Stopwatch.StartNew();
+        private long _last = -1000;
+        private readonly object _gate = new();
+
+        public void Report(FitProgress p)
+        {
+            lock (_gate)
+            {
+                if (_clock.ElapsedMilliseconds - _last < 500) return;
+                _last = _clock.ElapsedMilliseconds;
+                var start = p.Start < 0 ? "final run" : $"start {p.Start + 1}";
+                error.WriteLine($"  {start}, stage {p.Stage}/{p.Stages} (added width {p.BroadeningHz:0.#} Hz), iteration {p.Iteration}, sum of squares {p.ResidualSumOfSquares:G4}  (Ctrl+C stops and keeps the best point)");
+            }
+        }
+
+        public void Finish() => error.WriteLine($"  done in {_clock.Elapsed.TotalSeconds:0.0} s");
+    }
+}

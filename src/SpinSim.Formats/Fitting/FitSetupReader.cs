@@ -1,0 +1,147 @@
+using SpinSim.Core.Fitting.Spectral;
+using SpinSim.Core.Model;
+using SpinSim.Core.Spectrum;
+using SpinSim.Formats.SpinSystems;
+
+namespace SpinSim.Formats.Fitting;
+
+/// <summary>A fit setup that cannot be used: names the file, the line, and the fix.</summary>
+public sealed class FitSetupException(string path, int? line, string problem, string fix)
+    : Exception($"{path}{(line is { } l ? $":{l}" : "")}: {problem}. {fix}")
+{
+    public string FilePath { get; } = path;
+    public int? Line { get; } = line;
+}
+
+/// <summary>A fit setup as read, with the lineshape it asks for.</summary>
+public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
+
+/// <summary>
+/// Interprets a [fit] section:
+/// <code>
+/// [fit]
+/// regions_ppm = [[7.6, 6.8]]          # one or more [from, to]
+/// exclude_ppm = [[7.27, 7.25]]        # solvent, impurity
+/// vary = ["shift:*", "j:*", "linewidth", "scale", "baseline*"]
+/// fix = ["j:HA-HA'"]
+/// tie = [["shift:HA", "shift:HA'"]]
+/// baseline_order = 1                  # 0 constant, 1 linear, up to 3
+/// offset = true                       # small frequency offset per trace
+/// phase = true                        # zero-order phase error per trace
+/// linewidth_per_nucleus = false
+/// starts = 8
+/// lineshape = "lorentzian"            # gaussian, voigt
+/// [fit.bounds]
+/// "shift:HA" = [7.2, 7.5]
+/// </code>
+/// Every parameter name is checked against the system's parameters.
+/// </summary>
+public static class FitSetupReader
+{
+    private static readonly string[] Keys =
+        ["regions_ppm", "exclude_ppm", "vary", "fix", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape"];
+
+    public static FitSettings Read(FitSection? section, SpinSystem system, int traces)
+    {
+        var setup = new FitSetup();
+        if (section is null) return new FitSettings(setup, null);
+        var path = section.Path;
+        Lineshape? shape = null;
+        var nameLines = new List<(string Name, int Line, bool Pattern)>();
+        var bounds = new Dictionary<string, (double, double)>();
+        foreach (var e in section.Entries)
+        {
+            if (e.Table == "fit.bounds")
+            {
+                var pair = Pair(path, e, $"\"{e.Key}\" = [low, high]");
+                bounds[e.Key] = pair;
+                nameLines.Add((e.Key, e.Line, false));
+                continue;
+            }
+            if (e.Table != "fit")
+                throw new FitSetupException(path, e.Line, $"unknown table [{e.Table}]", "Use [fit] and [fit.bounds]");
+            switch (e.Key)
+            {
+                case "regions_ppm": setup = setup with { Regions = Ranges(path, e) }; break;
+                case "exclude_ppm": setup = setup with { Exclude = Ranges(path, e) }; break;
+                case "vary":
+                    setup = setup with { Vary = Strings(path, e) };
+                    nameLines.AddRange(setup.Vary.Select(n => (n, e.Line, true)));
+                    break;
+                case "fix":
+                    setup = setup with { Fix = Strings(path, e) };
+                    nameLines.AddRange(setup.Fix.Select(n => (n, e.Line, true)));
+                    break;
+                case "tie":
+                    if (e.Value is not object[] groups || groups.Any(g => g is not object[] inner || inner.Length < 2 || inner.Any(x => x is not string)))
+                        throw new FitSetupException(path, e.Line, "tie must be a list of lists of parameter names", "Write tie = [[\"shift:HA\", \"shift:HA'\"]]");
+                    var ties = groups.Select(g => (IReadOnlyList<string>)((object[])g).Cast<string>().ToArray()).ToArray();
+                    setup = setup with { Ties = ties };
+                    nameLines.AddRange(ties.SelectMany(t => t).Select(n => (n, e.Line, false)));
+                    break;
+                case "baseline_order":
+                    var order = Number(path, e);
+                    if (order is < 0 or > 3 || order != Math.Floor(order))
+                        throw new FitSetupException(path, e.Line, $"baseline_order is {order}", "Use 0 (constant), 1 (linear), 2 or 3");
+                    setup = setup with { BaselineOrder = (int)order };
+                    break;
+                case "offset": setup = setup with { FitOffset = Bool(path, e) }; break;
+                case "phase": setup = setup with { FitPhase = Bool(path, e) }; break;
+                case "linewidth_per_nucleus": setup = setup with { PerNucleusWidth = Bool(path, e) }; break;
+                case "starts":
+                    var starts = Number(path, e);
+                    if (starts is < 1 or > 64 || starts != Math.Floor(starts))
+                        throw new FitSetupException(path, e.Line, $"starts is {starts}", "Use a whole number from 1 to 64");
+                    setup = setup with { Starts = (int)starts };
+                    break;
+                case "lineshape":
+                    shape = (e.Value as string)?.ToLowerInvariant() switch
+                    {
+                        "lorentzian" => Lineshape.Lorentzian,
+                        "gaussian" => Lineshape.Gaussian,
+                        "voigt" => Lineshape.Voigt(),
+                        _ => throw new FitSetupException(path, e.Line, $"unknown lineshape {e.Value}", "Use \"lorentzian\", \"gaussian\" or \"voigt\""),
+                    };
+                    break;
+                default:
+                    throw new FitSetupException(path, e.Line, $"unknown key \"{e.Key}\" in [fit]", $"Allowed keys: {string.Join(", ", Keys)}");
+            }
+        }
+        setup = setup with { Bounds = bounds };
+
+        var names = setup.BuildParameters(system, traces, 1.0).Select(p => p.Name).ToArray();
+        foreach (var (name, line, pattern) in nameLines)
+        {
+            var known = pattern ? names.Any(n => FitSetup.Matches(name, n)) : names.Contains(name);
+            if (!known)
+                throw new FitSetupException(path, line, $"\"{name}\" names no parameter of this system",
+                    $"Parameters are: {string.Join(", ", names.Take(20))}{(names.Length > 20 ? ", ..." : "")}");
+        }
+        return new FitSettings(setup, shape);
+    }
+
+    private static IReadOnlyList<PpmRange> Ranges(string path, FitEntry e)
+    {
+        if (e.Value is not object[] items || items.Length == 0)
+            throw new FitSetupException(path, e.Line, $"{e.Key} must be a list of [from, to] pairs", $"Write {e.Key} = [[7.6, 6.8]]");
+        return items.Select(i => i is object[] pair && pair.Length == 2 && pair.All(v => v is double d && double.IsFinite(d)) && (double)pair[0] != (double)pair[1]
+            ? new PpmRange((double)pair[0], (double)pair[1])
+            : throw new FitSetupException(path, e.Line, $"each entry of {e.Key} must be two different numbers", $"Write {e.Key} = [[7.6, 6.8]]")).ToArray();
+    }
+
+    private static (double, double) Pair(string path, FitEntry e, string example) =>
+        e.Value is object[] { Length: 2 } p && p.All(v => v is double d && double.IsFinite(d))
+            ? ((double)p[0], (double)p[1])
+            : throw new FitSetupException(path, e.Line, $"bounds of {e.Key} must be two numbers", $"Write {example}");
+
+    private static IReadOnlyList<string> Strings(string path, FitEntry e) =>
+        e.Value is object[] items && items.All(i => i is string)
+            ? items.Cast<string>().ToArray()
+            : throw new FitSetupException(path, e.Line, $"{e.Key} must be a list of parameter names", $"Write {e.Key} = [\"shift:*\", \"j:*\"]");
+
+    private static double Number(string path, FitEntry e) =>
+        e.Value is double d ? d : throw new FitSetupException(path, e.Line, $"{e.Key} must be a number", $"Write {e.Key} = 1");
+
+    private static bool Bool(string path, FitEntry e) =>
+        e.Value is bool b ? b : throw new FitSetupException(path, e.Line, $"{e.Key} must be true or false", $"Write {e.Key} = true");
+}

@@ -1,0 +1,137 @@
+using System.Text.Json;
+using System.Xml.Linq;
+using SpinSim.Formats.SpinSystems;
+using SpinSim.Tests.Support;
+
+namespace SpinSim.Tests.Cli;
+
+public class FitCliTests
+{
+    private static string Temp(string ext) => Path.Combine(Path.GetTempPath(), $"spinsim-fit-{Guid.NewGuid():N}{ext}");
+
+    /// <summary>A synthetic measured ABX trace (invented values) and a start file with shifts and couplings moved.</summary>
+    private static (string Data, string Start) SyntheticAbx()
+    {
+        var data = Temp(".jdx");
+        Assert.Equal(0, CliTests.Run("simulate", CliTests.Example("abx-stereocentre.toml"), "--spectrum", data, "--points", "8192", "--noise", "0.004", "--seed", "9").Code);
+        var start = Temp(".toml");
+        File.WriteAllText(start, File.ReadAllText(CliTests.Example("abx-stereocentre.toml"))
+            .Replace("shift_ppm = 2.74", "shift_ppm = 2.84").Replace("j_hz = 8.9", "j_hz = 7.0"));
+        return (data, start);
+    }
+
+    [Fact]
+    public void FitWritesReportSystemFigureAndHtml()
+    {
+        var (data, start) = SyntheticAbx();
+        var (report, system, figure, html) = (Temp(".json"), Temp(".toml"), Temp(".png"), Temp(".html"));
+        var (code, o, err) = CliTests.Run("fit", start, "--data", data, "--starts", "2", "-q", "--report", report, "--write-system", system, "--figure", figure, "--html", html);
+        Assert.True(code == 0, err + o);
+
+        using var json = JsonDocument.Parse(File.ReadAllText(report));
+        var root = json.RootElement;
+        Assert.True(root.GetProperty("converged").GetBoolean());
+        Assert.True(root.GetProperty("rms").GetDouble() < 0.01);
+        var parameters = root.GetProperty("parameters").EnumerateArray().ToList();
+        var jbx = parameters.Single(p => p.GetProperty("name").GetString() == "j:HB-HX");
+        Assert.Equal("j_hz", jbx.GetProperty("kind").GetString());
+        Assert.Equal(["HB", "HX"], jbx.GetProperty("nuclei").EnumerateArray().Select(n => n.GetString()).ToArray());
+        Assert.Equal(8.9, jbx.GetProperty("value").GetDouble(), 0.02);
+        Assert.True(jbx.GetProperty("std_error").GetDouble() > 0);
+        Assert.Contains(parameters, p => p.GetProperty("kind").GetString() == "linewidth_hz" && p.GetProperty("nuclei").GetArrayLength() == 0);
+
+        // The best-fit system is a file that simulate accepts.
+        Assert.Equal(8.9, SpinSystemFiles.Read(system).System.Couplings.Single(c => c.A == "HB").J.Value, 0.02);
+        Assert.Equal(0, CliTests.Run("simulate", system).Code);
+
+        Assert.True(new FileInfo(figure).Length > 1000);
+        var page = File.ReadAllText(html);
+        XDocument.Parse(page[page.IndexOf("<html", StringComparison.Ordinal)..]);
+        Assert.Contains("j:HB-HX", page);
+        Assert.Contains("<svg", page);
+        foreach (var f in new[] { data, start, report, system, figure, html }) File.Delete(f);
+    }
+
+    [Fact]
+    public void FitSetupInTheSystemFileIsUsedAndChecked()
+    {
+        var (data, start) = SyntheticAbx();
+        File.AppendAllText(start, "\n[fit]\nregions_ppm = [[4.4, 3.8], [3.0, 2.3]]\nfix = [\"j:HA-HB\"]\nstarts = 1\n");
+        var (code, o, err) = CliTests.Run("fit", start, "--data", data, "-q");
+        Assert.True(code == 0, err);
+        Assert.Matches(@"j:HA-HB\s+-16\.4000\s+fixed", o);
+
+        File.AppendAllText(start, "tie = [[\"shift:HA\", \"shift:HQ\"]]\n");
+        (code, _, err) = CliTests.Run("fit", start, "--data", data, "-q");
+        Assert.Equal(1, code);
+        Assert.Contains(start + ":", err);
+        Assert.Contains("\"shift:HQ\" names no parameter", err);
+        File.Delete(data);
+        File.Delete(start);
+    }
+
+    [Fact]
+    public void MissingDataIsAUsageError() => Assert.Equal(2, CliTests.Run("fit", CliTests.Example("vinyl.toml")).Code);
+
+    [Fact]
+    public void DataOutsideTheSystemsRangeIsExplained()
+    {
+        var data = Temp(".csv");
+        File.WriteAllText(data, "shift_ppm,intensity\n" + string.Join("\n", Enumerable.Range(0, 200).Select(i => $"{9 + i * 0.001},{i % 7}")));
+        var (code, _, err) = CliTests.Run("fit", CliTests.Example("vinyl.toml"), "--data", data, "-q");
+        Assert.Equal(1, code);
+        Assert.Contains("points of the trace lie in the fitted regions", err);
+        File.Delete(data);
+    }
+
+    [ReferenceFact]
+    public void RealMeasuredAbxOfTheSharedRutinSpectrumFitsWithPlausibleCouplings()
+    {
+        // Source: rutin-1h-400mhz-link.jdx (../shared/reference-data/jcamp, SOURCES.md: a real measured ABX-type system of the
+        // B ring near 7.51, 7.49 and 6.80 ppm, referencing off by about -0.04 ppm). Expected magnitudes are common practice,
+        // no source: aromatic ortho 7 to 9 Hz, meta 1 to 3 Hz, para below 1 Hz.
+        var start = Temp(".toml");
+        File.WriteAllText(start, """
+            title = "B-ring ABX of the shared measured spectrum"
+            field_mhz = 399.782198
+            linewidth_hz = 1.0
+            [[nucleus]]
+            id = "H2'"
+            shift_ppm = 7.49
+            [[nucleus]]
+            id = "H6'"
+            shift_ppm = 7.47
+            [[nucleus]]
+            id = "H5'"
+            shift_ppm = 6.78
+            [[coupling]]
+            between = ["H5'", "H6'"]
+            j_hz = 8.0
+            [[coupling]]
+            between = ["H2'", "H6'"]
+            j_hz = 2.0
+            [[coupling]]
+            between = ["H2'", "H5'"]
+            j_hz = 0.2
+            [fit]
+            regions_ppm = [[7.60, 7.38], [6.90, 6.70]]
+            baseline_order = 1
+            phase = true
+            starts = 2
+            """);
+        var report = Temp(".json");
+        var (code, _, err) = CliTests.Run("fit", start, "--data", ReferenceData.PathOf("jcamp", "rutin-1h-400mhz-link.jdx"), "-q", "--report", report);
+        Assert.True(code == 0, err);
+        using var json = JsonDocument.Parse(File.ReadAllText(report));
+        Assert.True(json.RootElement.GetProperty("converged").GetBoolean());
+        Assert.True(json.RootElement.GetProperty("r_factor").GetDouble() < 0.1);
+        double Value(string name) => json.RootElement.GetProperty("parameters").EnumerateArray()
+            .Single(p => p.GetProperty("name").GetString() == name).GetProperty("value").GetDouble();
+        Assert.InRange(Math.Abs(Value("j:H5'-H6'")), 7, 9);
+        Assert.InRange(Math.Abs(Value("j:H2'-H6'")), 1, 3);
+        Assert.InRange(Math.Abs(Value("j:H2'-H5'")), 0, 1);
+        Assert.InRange(Value("shift:H5'"), 6.75, 6.85);
+        File.Delete(start);
+        File.Delete(report);
+    }
+}
