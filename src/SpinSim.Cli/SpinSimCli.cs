@@ -27,6 +27,7 @@ public static class SpinSimCli
         root.Subcommands.Add(SimulateCommand.Build(io));
         root.Subcommands.Add(InspectCommand.Build(io));
         root.Subcommands.Add(FitCommand.Build(io));
+        root.Subcommands.Add(FieldsCommand.Build(io));
 
         var parse = root.Parse(args);
         if (parse.Errors.Count > 0)

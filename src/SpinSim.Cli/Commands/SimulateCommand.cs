@@ -179,14 +179,17 @@ public sealed class TraceChoice
         if (points < 2 || points > 16_777_216) throw new UserInputException($"--points must be between 2 and 16777216, got {points}");
         var share = parse.GetValue(GaussianShare);
         if (!(share >= 0 && share <= 1)) throw new UserInputException($"--gaussian-share must be between 0 and 1, got {share}");
-        var shape = parse.GetValue(Shape) switch
-        {
-            "gaussian" => Lineshape.Gaussian,
-            "voigt" => Lineshape.Voigt(share),
-            _ => Lineshape.Lorentzian,
-        };
+        var shape = ShapeFrom(parse.GetValue(Shape)!, share);
         var (from, to) = (parse.GetValue(From), parse.GetValue(To));
         if (from is { } f && to is { } t && f == t) throw new UserInputException("--from and --to must differ");
         return new SimulationSettings(new WidthHz(width), shape, from, to, points, parse.GetValue(ReferenceOffset));
     }
+
+    /// <summary>The lineshape named by a --shape value (lorentzian, gaussian or voigt), with the Voigt's Gaussian share.</summary>
+    internal static Lineshape ShapeFrom(string name, double gaussianShare) => name switch
+    {
+        "gaussian" => Lineshape.Gaussian,
+        "voigt" => Lineshape.Voigt(gaussianShare),
+        _ => Lineshape.Lorentzian,
+    };
 }
