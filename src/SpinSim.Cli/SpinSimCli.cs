@@ -28,6 +28,7 @@ public static class SpinSimCli
         root.Subcommands.Add(InspectCommand.Build(io));
         root.Subcommands.Add(FitCommand.Build(io));
         root.Subcommands.Add(FieldsCommand.Build(io));
+        root.Subcommands.Add(TreeCommand.Build(io));
 
         var parse = root.Parse(args);
         if (parse.Errors.Count > 0)

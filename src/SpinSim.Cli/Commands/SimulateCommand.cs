@@ -31,10 +31,14 @@ public static class SimulateCommand
         var noise = new Option<double>("--noise") { Description = "Add Gaussian noise with this standard deviation, as a fraction of the tallest point (synthetic data for demos and tests)" };
         var seed = new Option<int>("--seed") { Description = "Seed of the noise generator", DefaultValueFactory = _ => 1 };
         var verbose = new Option<bool>("--verbose", "-v") { Description = "Say which linear-algebra backend ran, how the system was split and what it cost" };
+        var sticks = new Option<bool>("--sticks") { Description = "In the figure, draw the transitions as sticks below the trace" };
+        var labels = new Option<bool>("--labels") { Description = "In the figure, label the nuclei at their shifts" };
+        var figure = new FigureChoice();
         var command = new Command("simulate", "Simulate the spectrum of a spin system at a field: exact transitions, trace and integrals")
         {
-            file, field, lines, spectrum, jcampForm, noise, seed, verbose,
+            file, field, lines, spectrum, jcampForm, noise, seed, verbose, sticks, labels,
         };
+        figure.AddTo(command);
         engine.AddTo(command);
         shape.AddTo(command);
         command.SetAction(parse =>
@@ -75,6 +79,15 @@ public static class SimulateCommand
             }
 
             var inputs = new[] { path };
+            if (parse.GetValue(figure.Path) is { } figurePath)
+            {
+                var figureOptions = figure.Options(parse, $"{Title(system)}, {system.Field.Value:0.###} MHz");
+                var model = SpinSim.Figures.Plots.SpectrumFigure.Simulated(simulated.Trace,
+                    parse.GetValue(sticks) ? SpinSim.Figures.Plots.SpectrumFigure.SticksFrom(result) : null,
+                    parse.GetValue(labels) ? SpinSim.Figures.Plots.SpectrumFigure.LabelsFrom(system) : null, figureOptions);
+                FigureChoice.Write(figurePath, model, figureOptions, inputs);
+                io.Out.WriteLine($"figure written to {figurePath}");
+            }
             if (parse.GetValue(lines) is { } linesPath)
             {
                 AtomicFile.Write(linesPath, w => LineListCsv.Write(w, result, system), inputs);
