@@ -29,6 +29,7 @@ public static class SpinSimCli
         root.Subcommands.Add(FitCommand.Build(io));
         root.Subcommands.Add(FieldsCommand.Build(io));
         root.Subcommands.Add(TreeCommand.Build(io));
+        root.Subcommands.Add(DemoCommand.Build(io));
 
         var parse = root.Parse(args);
         if (parse.Errors.Count > 0)

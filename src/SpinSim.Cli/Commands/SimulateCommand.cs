@@ -30,13 +30,14 @@ public static class SimulateCommand
         jcampForm.AcceptOnlyFromAmong("affn", "difdup");
         var noise = new Option<double>("--noise") { Description = "Add Gaussian noise with this standard deviation, as a fraction of the tallest point (synthetic data for demos and tests)" };
         var seed = new Option<int>("--seed") { Description = "Seed of the noise generator", DefaultValueFactory = _ => 1 };
+        var phaseError = new Option<double>("--phase-error") { Description = "Mix in dispersion as a zero-order phase error of this many degrees (synthetic data for demos and tests)" };
         var verbose = new Option<bool>("--verbose", "-v") { Description = "Say which linear-algebra backend ran, how the system was split and what it cost" };
         var sticks = new Option<bool>("--sticks") { Description = "In the figure, draw the transitions as sticks below the trace" };
         var labels = new Option<bool>("--labels") { Description = "In the figure, label the nuclei at their shifts" };
         var figure = new FigureChoice();
         var command = new Command("simulate", "Simulate the spectrum of a spin system at a field: exact transitions, trace and integrals")
         {
-            file, field, lines, spectrum, jcampForm, noise, seed, verbose, sticks, labels,
+            file, field, lines, spectrum, jcampForm, noise, seed, phaseError, verbose, sticks, labels,
         };
         figure.AddTo(command);
         engine.AddTo(command);
@@ -54,6 +55,7 @@ public static class SimulateCommand
             foreach (var w in document.Warnings) io.Error.WriteLine($"warning: {w}");
 
             var sigmaFraction = parse.GetValue(noise);
+            var phase = parse.GetValue(phaseError);
             if (sigmaFraction < 0 || !double.IsFinite(sigmaFraction)) throw new UserInputException($"--noise must be 0 or above, got {sigmaFraction}");
             var options = engine.Read(parse);
             var started = System.Diagnostics.Stopwatch.StartNew();
@@ -101,6 +103,14 @@ public static class SimulateCommand
                     $"SpinSim {Versions.Current}: simulated {system.Observed} spectrum of {Path.GetFileName(path)} at {system.Field.Value:0.###} MHz",
                     "synthetic: computed from a spin Hamiltonian, not measured",
                 };
+                if (phase != 0)
+                {
+                    if (!double.IsFinite(phase) || Math.Abs(phase) > 180) throw new UserInputException($"--phase-error must be between -180 and 180 degrees, got {phase}");
+                    var mixed = PhaseError.Apply(trace.Intensity.ToArray(), SpectrumSimulator.RenderLines(system, result, settings.DefaultWidth), simulated.Grid, settings.Shape, phase);
+                    trace = new SpectrumTrace(trace.ShiftPpm.ToArray(), mixed, trace.ObserveMHz, trace.Nucleus,
+                        TraceOrigin.Describe(trace.Origin.Source + " with a synthetic phase error", "simulated", trace.Origin.Form));
+                    comments.Add($"synthetic zero-order phase error of {phase:G4} degrees mixed in");
+                }
                 if (sigmaFraction > 0)
                 {
                     var noisy = trace.Intensity.ToArray();

@@ -15,8 +15,10 @@ internal static class Identifiability
 
     public static IEnumerable<string> Check(ParameterLayout layout, SpectralModel model, double[] full)
     {
+        // One representative per free value: tied couplings change together and are reported once.
         var couplings = Enumerable.Range(0, layout.Parameters.Count)
-            .Where(i => layout.Parameters[i].Kind == ParameterKind.JHz && layout.Parameters[i].Vary).ToArray();
+            .Where(i => layout.Parameters[i].Kind == ParameterKind.JHz && layout.Parameters[i].Vary)
+            .GroupBy(layout.FreeIndexOf).Select(g => g.First()).ToArray();
         if (couplings.Length == 0) yield break;
         var reference = Models(model, full);
 

@@ -1,0 +1,136 @@
+using System.CommandLine;
+using System.Text.Encodings.Web;
+using System.Text.Json;
+using System.Text.Json.Nodes;
+
+namespace SpinSim.Cli.Commands;
+
+/// <summary>
+/// <c>spinsim demo</c>: SpinSim's whole job on bundled data of our own (invented values): simulates every system in
+/// spin-systems/, makes two synthetic measured traces (AA'BB' and ABX, with noise and a small phase error) from invented
+/// true values, fits them from the example files' values, plans fields for one system and draws a splitting diagram.
+/// Every step is an ordinary spinsim command, logged with its output in demo-log.txt; summary.json gathers the numbers.
+/// </summary>
+public static class DemoCommand
+{
+    /// <summary>Points of the demo's spectra and synthetic traces: enough for 0.6 Hz lines, small enough to commit.</summary>
+    public const int Points = 16384;
+
+    public static Command Build(CommandIo io)
+    {
+        var output = new Option<string>("--out") { Description = "Folder for the outputs (created if missing)", DefaultValueFactory = _ => "demo-output" };
+        var systems = new Option<string>("--systems") { Description = "Folder of example spin systems", DefaultValueFactory = _ => "spin-systems" };
+        var command = new Command("demo", "Run SpinSim's whole job on the bundled examples (invented values) and write figures, reports and spectra") { output, systems };
+        command.SetAction(parse => Run(io, parse.GetValue(output)!, parse.GetValue(systems)!));
+        return command;
+    }
+
+    private static int Run(CommandIo io, string outDir, string systemsDir)
+    {
+        if (!Directory.Exists(systemsDir))
+            throw new UserInputException($"{systemsDir}: folder of example systems not found; run the demo from the repository root or give --systems");
+        var files = Directory.GetFiles(systemsDir, "*.toml").Order(StringComparer.Ordinal).ToArray();
+        if (files.Length == 0) throw new UserInputException($"{systemsDir}: no .toml spin systems in it");
+        Directory.CreateDirectory(outDir);
+        Directory.CreateDirectory(Path.Combine(outDir, "systems"));
+
+        var log = new StringWriter();
+        var summary = new JsonObject
+        {
+            ["note"] = "numbers from `spinsim demo`; all systems and true values are invented for the demonstration",
+        };
+        int Step(params string[] args)
+        {
+            io.Out.WriteLine($"spinsim {string.Join(' ', args.Select(Quote))}");
+            log.WriteLine($"$ spinsim {string.Join(' ', args.Select(Quote))}");
+            var o = new StringWriter();
+            var e = new StringWriter();
+            var code = SpinSimCli.Run(args, o, e, io.Cancel);
+            log.Write(o.ToString());
+            log.Write(e.ToString());
+            log.WriteLine();
+            if (code != 0) throw new UserInputException($"demo step failed (exit {code}): spinsim {string.Join(' ', args)}\n{e}");
+            return code;
+        }
+
+        // 1. Every example system: line list, spectrum and figure.
+        var simulated = new JsonArray();
+        foreach (var file in files)
+        {
+            var name = Path.GetFileNameWithoutExtension(file);
+            var stem = Path.Combine(outDir, "systems", name);
+            Step("simulate", file, "--lines", stem + ".lines.csv", "--spectrum", stem + ".jdx", "--jcamp-form", "difdup",
+                "--points", Points.ToString(), "--figure", stem + ".png", "--labels", "--sticks");
+            var lineCount = File.ReadLines(stem + ".lines.csv").Count() - 1;
+            simulated.Add(new JsonObject { ["system"] = Path.GetFileName(file), ["lines"] = lineCount });
+        }
+        summary["simulated"] = simulated;
+
+        // 2. Two synthetic measured traces from invented true values, fitted from the example files' values.
+        var fits = new JsonArray();
+        foreach (var (tag, start) in new[] { ("aabb", "para-ring-aabb.toml"), ("abx", "abx-stereocentre.toml") })
+        {
+            var truth = Path.Combine(outDir, $"truth-{tag}.toml");
+            var setup = Path.Combine(outDir, $"fit-{tag}.toml");
+            WriteResource($"truth-{tag}.toml", truth);
+            WriteResource($"fit-{tag}.toml", setup);
+            var measured = Path.Combine(outDir, $"measured-{tag}.jdx");
+            Step("simulate", truth, "--spectrum", measured, "--jcamp-form", "difdup", "--points", Points.ToString(),
+                "--noise", "0.005", "--seed", tag == "aabb" ? "11" : "12", "--phase-error", tag == "aabb" ? "1.5" : "-2.0");
+            var report = Path.Combine(outDir, $"fit-{tag}.json");
+            Step("fit", Path.Combine(systemsDir, start), "--data", measured, "--setup", setup, "--quiet",
+                "--report", report, "--write-system", Path.Combine(outDir, $"fit-{tag}.best.toml"),
+                "--figure", Path.Combine(outDir, $"fit-{tag}.png"), "--html", Path.Combine(outDir, $"fit-{tag}.html"));
+            using var json = JsonDocument.Parse(File.ReadAllText(report));
+            var root = json.RootElement;
+            fits.Add(new JsonObject
+            {
+                ["trace"] = Path.GetFileName(measured),
+                ["start"] = start,
+                ["true_values"] = Path.GetFileName(truth),
+                ["converged"] = root.GetProperty("converged").GetBoolean(),
+                ["rms"] = root.GetProperty("rms").GetDouble(),
+                ["starts_at_best"] = root.GetProperty("starts_at_best").GetInt32(),
+                ["parameters"] = new JsonArray(root.GetProperty("parameters").EnumerateArray()
+                    .Select(p => (JsonNode)new JsonObject
+                    {
+                        ["name"] = p.GetProperty("name").GetString(),
+                        ["value"] = p.GetProperty("value").GetDouble(),
+                        ["std_error"] = p.GetProperty("std_error").ValueKind == JsonValueKind.Number ? p.GetProperty("std_error").GetDouble() : null,
+                    }).ToArray()),
+            });
+        }
+        summary["fits"] = fits;
+
+        // 3. Field planning for the AA'BB' ring, and a splitting diagram.
+        var fields = Path.Combine(outDir, "fields-para-ring.json");
+        var ring = Path.Combine(systemsDir, "para-ring-aabb.toml");
+        var o = new StringWriter();
+        var e = new StringWriter();
+        log.WriteLine($"$ spinsim fields {Quote(ring)} --at 43,60,80,100,300,600 --json --figure {Quote(Path.Combine(outDir, "fields-para-ring.png"))}");
+        io.Out.WriteLine($"spinsim fields {ring} --at 43,60,80,100,300,600 --json --figure {Path.Combine(outDir, "fields-para-ring.png")}");
+        if (SpinSimCli.Run(["fields", ring, "--at", "43,60,80,100,300,600", "--json", "--figure", Path.Combine(outDir, "fields-para-ring.png")], o, e, io.Cancel) != 0)
+            throw new UserInputException($"demo step failed: spinsim fields\n{e}");
+        var fieldsJson = o.ToString();
+        File.WriteAllText(fields, fieldsJson);
+        log.WriteLine($"(JSON written to {fields})");
+        summary["fields"] = JsonNode.Parse(fieldsJson);
+        Step("tree", Path.Combine(systemsDir, "isopropyl.toml"), "CH", "--figure", Path.Combine(outDir, "tree-isopropyl-CH.png"));
+
+        File.WriteAllText(Path.Combine(outDir, "demo-log.txt"), log.ToString().Replace(Path.GetFullPath(outDir), outDir));
+        File.WriteAllText(Path.Combine(outDir, "summary.json"),
+            summary.ToJsonString(new JsonSerializerOptions { WriteIndented = true, Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping }));
+        io.Out.WriteLine($"demo outputs written to {outDir}/ (summary.json, demo-log.txt, figures, reports, spectra)");
+        return 0;
+    }
+
+    private static void WriteResource(string name, string path)
+    {
+        using var stream = typeof(DemoCommand).Assembly.GetManifestResourceStream("Demo." + name)
+            ?? throw new InvalidOperationException($"embedded demo file {name} is missing from the build");
+        using var file = File.Create(path);
+        stream.CopyTo(file);
+    }
+
+    private static string Quote(string s) => s.Contains(' ') ? $"\"{s}\"" : s;
+}
