@@ -161,7 +161,8 @@ public static class FitCommand
     }
 
     internal static IReadOnlyList<ParameterRow> Rows(SpectrumFitResult result) =>
-        result.Parameters.Where(p => p.TiedWith is null || string.CompareOrdinal(p.Name, p.TiedWith.Split(", ")[0]) < 0)
+        // A tied group is shown once, on the row of its first member.
+        result.Parameters.Where((p, i) => p.TiedWith is null || !result.Parameters.Take(i).Any(q => p.TiedWith.Split(", ").Contains(q.Name)))
             .Select(p => new ParameterRow(p.TiedWith is null ? p.Name : $"{p.Name} (= {p.TiedWith})", Format(p.Value, p.Kind),
                 !p.Varied ? "fixed" : double.IsFinite(p.StdError) ? p.StdError.ToString("G2", CultureInfo.InvariantCulture) : "undetermined", p.Unit)).ToList();
 

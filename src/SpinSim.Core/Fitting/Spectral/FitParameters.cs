@@ -24,7 +24,10 @@ public sealed record FitParameter(
     double Upper,
     bool Vary)
 {
-    public string Unit => Kind switch
+    public string Unit => UnitOf(Kind);
+
+    /// <summary>The unit a parameter kind is stated in ("" for the dimensionless scale and baseline).</summary>
+    public static string UnitOf(ParameterKind kind) => kind switch
     {
         ParameterKind.ShiftPpm => "ppm",
         ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz => "Hz",

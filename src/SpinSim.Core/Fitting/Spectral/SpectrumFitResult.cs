@@ -8,13 +8,7 @@ namespace SpinSim.Core.Fitting.Spectral;
 public sealed record FittedParameter(string Name, ParameterKind Kind, IReadOnlyList<string> Nuclei, int Dataset, double Value, double StdError,
     bool Varied, bool AtBound, string? TiedWith)
 {
-    public string Unit => Kind switch
-    {
-        ParameterKind.ShiftPpm => "ppm",
-        ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz => "Hz",
-        ParameterKind.PhaseDeg => "deg",
-        _ => "",
-    };
+    public string Unit => FitParameter.UnitOf(Kind);
 }
 
 /// <summary>A measured trace over the fitted points with the model and the residual, in the trace's own units.</summary>
