@@ -107,7 +107,7 @@ public static class FitCommand
             try
             {
                 result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed),
-                    Progress: progress, Cancel: io.Cancel, Engine: engine.Read(parse) with { RelativeIntensityFloor = 1e-13 }));
+                    Progress: progress, Cancel: io.Cancel, Engine: engine.Read(parse)));
             }
             catch (ArgumentException e) { throw new UserInputException(e.Message); }
             progress?.Finish();

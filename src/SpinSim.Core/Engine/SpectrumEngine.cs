@@ -52,10 +52,17 @@ public static class SpectrumEngine
 
         var raw = new RawLines[work.Count][];
         var sizes = new IReadOnlyList<int>[work.Count];
-        Parallel.For(0, work.Count, new ParallelOptions { CancellationToken = cancel }, k =>
+        var solvers = work.Select(w => new SubspectrumSolver(w.Combination.Particles, w.Combination.CouplingsHz, system.Nuclei.Count, backend)).ToArray();
+        // Many small subspectra are cheaper on one thread than handed between threads.
+        var parallel = new ParallelOptions
         {
-            var (combination, weight) = work[k];
-            var solver = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, system.Nuclei.Count, backend);
+            CancellationToken = cancel,
+            MaxDegreeOfParallelism = solvers.Sum(s => (long)s.StateCount) >= SubspectrumSolver.ParallelBlockSize * 64 ? -1 : 1,
+        };
+        Parallel.For(0, work.Count, parallel, k =>
+        {
+            var (_, weight) = work[k];
+            var solver = solvers[k];
             sizes[k] = solver.BlockSizes();
             raw[k] = solver.Solve(weight, floor, cancel);
         });

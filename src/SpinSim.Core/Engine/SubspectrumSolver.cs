@@ -47,6 +47,9 @@ internal sealed class SubspectrumSolver
     private readonly int _entryCount;
     private readonly IDenseBackend _backend;
 
+    /// <summary>Blocks of at least this many states are worth spreading over threads.</summary>
+    internal const int ParallelBlockSize = 64;
+
     private readonly int[] _dims;
     private readonly int[] _strides;
     private readonly int _totalStates;
@@ -72,6 +75,9 @@ internal sealed class SubspectrumSolver
     /// <summary>Sizes of the blocks this solver will diagonalise, without building them.</summary>
     public IReadOnlyList<int> BlockSizes() => Partition().Blocks.Select(b => b.Length).ToArray();
 
+    /// <summary>Size of the product space of the particles.</summary>
+    public int StateCount => _totalStates;
+
     public RawLines[] Solve(double weight, double intensityFloor, CancellationToken cancel)
     {
         var (blocks, keyOf, lowerKeyStep) = Partition();
@@ -95,7 +101,9 @@ internal sealed class SubspectrumSolver
             }
 
         var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
-        Parallel.ForEach(order, new ParallelOptions { CancellationToken = cancel }, b =>
+        // Thread hand-offs cost more than small blocks: below this size one thread does all.
+        var parallel = new ParallelOptions { CancellationToken = cancel, MaxDegreeOfParallelism = order.Length > 0 && blocks[order[0]].Length >= ParallelBlockSize ? -1 : 1 };
+        Parallel.ForEach(order, parallel, b =>
         {
             var n = blocks[b].Length;
             var h = BuildBlock(blocks[b], local);
@@ -107,10 +115,10 @@ internal sealed class SubspectrumSolver
 
         var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
         var iz = new double[blocks.Count][];
-        Parallel.ForEach(order, new ParallelOptions { CancellationToken = cancel }, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
+        Parallel.ForEach(order, parallel, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
 
         var results = new RawLines[pairs.Count];
-        Parallel.For(0, pairs.Count, new ParallelOptions { CancellationToken = cancel }, k =>
+        Parallel.For(0, pairs.Count, parallel, k =>
         {
             var (u, l) = pairs[k];
             results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed, weight, intensityFloor);

@@ -13,11 +13,25 @@ namespace SpinSim.Core.Fitting.Spectral;
 /// </summary>
 internal sealed class SpectralModel : ILeastSquaresModel
 {
-    /// <summary>Lines are evaluated within this many widths of their centre (Lorentzian tail beyond: 0.16 %).</summary>
-    private const double CutoffWidths = 200;
+    /// <summary>
+    /// A line of the intensity of one uncoupled nucleus is evaluated within this many widths of its centre (its Lorentzian
+    /// tail beyond holds 0.32 % of its area and is below 2.5e-5 of its height; the fitted baseline takes up most of it). Weaker lines get a window shrunk by the
+    /// square root of their relative intensity, which keeps the neglected tail below the same fraction of a single
+    /// nucleus's height, down to <see cref="MinimumCutoffWidths"/>; weak combination lines then cost almost nothing.
+    /// </summary>
+    private const double CutoffWidths = 100;
+
+    private const double MinimumCutoffWidths = 3;
 
     /// <summary>
-    /// Over the outer part of the cut-off window contributions fade out smoothly (raised cosine), so that the model stays
+    /// Lines weaker than this fraction of a single nucleus's intensity are left out, and those up to ten times stronger
+    /// fade in smoothly, so that no line appears or vanishes abruptly as parameters move (a step would corrupt the
+    /// finite-difference derivatives). At 1e-7 of one nucleus they lie far below any measured noise.
+    /// </summary>
+    internal const double NegligibleIntensity = 1e-7;
+
+    /// <summary>
+    /// Over the outer part of the cut-off window contributions fade out smoothly (a smooth step), so that the model stays
     /// differentiable when a line moves and points enter or leave its window; a hard edge would put steps into the
     /// finite-difference derivatives.
     /// </summary>
@@ -166,7 +180,8 @@ internal sealed class SpectralModel : ILeastSquaresModel
             for (var e = 0; e < perEntryWidth.Length; e++)
                 if (perEntryWidth[e] == 0) perEntryWidth[e] = double.IsNaN(globalWidth) ? 1.0 : globalWidth;
 
-        var areaScale = scale / Math.Pow(2, _system.Nuclei.Sum(n => n.Count) - 1) / data.Normalisation;
+        var singleNucleus = Math.Pow(2, _system.Nuclei.Sum(n => n.Count) - 1);
+        var areaScale = scale / singleNucleus / data.Normalisation;
         var cos = Math.Cos(phaseDeg * Math.PI / 180);
         var sin = Math.Sin(phaseDeg * Math.PI / 180);
         y.Clear();
@@ -174,7 +189,12 @@ internal sealed class SpectralModel : ILeastSquaresModel
         {
             var width = hasPerEntry ? lines.WeightedByOrigin(l, perEntryWidth) : globalWidth;
             if (!(width > 0)) return false;
-            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + offsetHz, lines.Lines[l].Intensity * areaScale, width, cos, sin);
+            var intensity = lines.Lines[l].Intensity;
+            var relative = intensity / singleNucleus;
+            if (relative < NegligibleIntensity) continue;
+            if (relative < 10 * NegligibleIntensity) intensity *= 1 - SmoothStep((10 * NegligibleIntensity - relative) / (9 * NegligibleIntensity));
+            var cutoff = Math.Max(MinimumCutoffWidths, CutoffWidths * Math.Sqrt(Math.Min(1, intensity / singleNucleus)));
+            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + offsetHz, intensity * areaScale, width, cutoff, cos, sin);
         }
         foreach (var (order, value) in baseline)
             for (var i = 0; i < y.Length; i++)
@@ -182,11 +202,11 @@ internal sealed class SpectralModel : ILeastSquaresModel
         return true;
     }
 
-    private void AddLine(double[] hz, Span<double> y, double centreHz, double area, double widthHz, double cos, double sin)
+    private void AddLine(double[] hz, Span<double> y, double centreHz, double area, double widthHz, double cutoffWidths, double cos, double sin)
     {
         var (lorentzian, gaussian) = _shape.Components(widthHz);
         lorentzian += _broadeningHz;
-        var reach = CutoffWidths * (lorentzian + gaussian);
+        var reach = cutoffWidths * (lorentzian + gaussian);
         var first = LowerBound(hz, centreHz - reach);
         var last = LowerBound(hz, centreHz + reach);
         var taper = TaperStart * reach;
@@ -214,7 +234,10 @@ internal sealed class SpectralModel : ILeastSquaresModel
     }
 
     private static double Taper(double distance, double start, double end) =>
-        distance <= start ? 1 : distance >= end ? 0 : 0.5 * (1 + Math.Cos(Math.PI * (distance - start) / (end - start)));
+        distance <= start ? 1 : distance >= end ? 0 : 1 - SmoothStep((distance - start) / (end - start));
+
+    /// <summary>3t^2 - 2t^3: 0 at 0, 1 at 1, flat at both ends (continuous first derivative).</summary>
+    private static double SmoothStep(double t) => t * t * (3 - 2 * t);
 
     private static int LowerBound(double[] sorted, double value)
     {

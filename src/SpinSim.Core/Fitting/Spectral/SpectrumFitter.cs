@@ -41,9 +41,11 @@ public static class SpectrumFitter
     public static SpectrumFitResult Fit(SpectrumFitProblem problem, SpectrumFitOptions? options = null)
     {
         options ??= new SpectrumFitOptions();
-        // A floor far below anything visible: lines that cross a higher floor as parameters move would put steps into
-        // the finite-difference derivatives.
-        var engine = options.Engine ?? new EngineOptions(RelativeIntensityFloor: 1e-13);
+        // The engine may drop lines ten times weaker than those the model already fades out smoothly
+        // (SpectralModel.NegligibleIntensity, relative to one nucleus); a higher floor would put steps into the
+        // finite-difference derivatives as lines cross it.
+        var floor = SpectralModel.NegligibleIntensity / 10 / Math.Max(1, problem.System.ObservedNucleusCount);
+        var engine = (options.Engine ?? EngineOptions.Default) with { RelativeIntensityFloor = floor };
         var prepared = problem.Data.Select(PreparedData.From).ToArray();
         var layout = new ParameterLayout(StartScales(problem, prepared, engine), problem.Ties);
         if (layout.FreeCount == 0) throw new ArgumentException("nothing to fit: every parameter is fixed");
