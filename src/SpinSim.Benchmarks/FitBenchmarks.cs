@@ -17,7 +17,7 @@ namespace SpinSim.Benchmarks;
 public class FitBenchmarks
 {
     [Params("aabb", "eight-spins")]
-    public string System { get; set; } = "aabb";
+    public string Case { get; set; } = "aabb";
 
     [Params(1, 8)]
     public int Starts { get; set; }
@@ -27,12 +27,12 @@ public class FitBenchmarks
     [GlobalSetup]
     public void Setup()
     {
-        var truth = System == "aabb" ? AaBb() : EightSpins();
+        var truth = Case == "aabb" ? AaBb() : EightSpins();
         var trace = Synthetic(truth, 0.7, 16384, 0.005, 1);
         var start = SpinSystem.Create(truth.Field,
             truth.Nuclei.Select((n, i) => n with { Shift = new ShiftPpm(n.Shift.Value + (i % 2 == 0 ? 3.0 : -3.0) / truth.Field.Value) }),
             truth.Couplings.Select((c, i) => c with { J = new CouplingHz(c.J.Value * (i % 2 == 0 ? 1.1 : 0.9)) }));
-        var setup = System == "aabb"
+        var setup = Case == "aabb"
             ? new FitSetup { Ties = [["shift:HA", "shift:HA'"], ["shift:HB", "shift:HB'"], ["j:HA-HB", "j:HA'-HB'"], ["j:HA-HB'", "j:HA'-HB"]] }
             : new FitSetup();
         var dataset = new FitDataset(trace, [new PpmRange(trace.ShiftPpm.Max(), trace.ShiftPpm.Min())], []);
