@@ -34,6 +34,24 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
             1.5 * 2 * cubes * NativeSecondsPerCube, 1.5 * 2 * cubes * ManagedSecondsPerCube);
     }
 
+    /// <summary>
+    /// The cost of a cluster plan: every cluster is diagonalised once per distinct spectator configuration, so times
+    /// add up over clusters and configurations; the memory is that of the largest cluster, since each cluster's
+    /// eigenvectors are released when its lines are out.
+    /// </summary>
+    public static ResourceEstimate For(SpinSystem system, ClusterPlan plan)
+    {
+        if (plan.IsExact) return For(system);
+        var parts = plan.Clusters.Select(c => (Estimate: For(system, c.Entries), Configurations: ClusterPartition.SpectatorConfigurations(system, c).Count)).ToList();
+        if (parts.Count == 0) return new ResourceEstimate(0, 0, 0, 0, 0);
+        return new ResourceEstimate(
+            parts.Max(p => p.Estimate.LargestBlock),
+            parts.Sum(p => p.Estimate.StateCount * p.Configurations),
+            parts.Max(p => p.Estimate.WorkingBytes),
+            parts.Sum(p => p.Estimate.NativeSeconds * p.Configurations),
+            parts.Sum(p => p.Estimate.ManagedSeconds * p.Configurations));
+    }
+
     /// <summary>Sizes of the blocks of fixed M per isotope for particles of spin twiceF/2.</summary>
     internal static List<int> BlockSizes(int[] twiceF, Isotope[] isotopes)
     {

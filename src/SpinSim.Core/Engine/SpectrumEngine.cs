@@ -65,7 +65,8 @@ public static class SpectrumEngine
         var (lines, origin) = Merge(raw.SelectMany(r => r).ToList(), system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
         var notes = plan.IsExact ? new List<string> { "exact: the whole system was diagonalised as one" } : new List<string>
         {
-            $"split into {plan.Clusters.Count} cluster(s) at |J/dnu| > {plan.Threshold}; the largest coupling treated to first order has |J/dnu| = {plan.LargestCutRatio:0.###}",
+            $"split into {plan.Clusters.Count} cluster(s) at |J/dnu| > {plan.Threshold}; the largest coupling treated to first order has |J/dnu| = {plan.LargestCutRatio:0.###}" +
+            $"; estimated largest line displacement {plan.LargestDisplacementEstimate().Hz:0.###} Hz",
         };
         return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, notes);
     }
