@@ -1,3 +1,5 @@
+using System.Collections.Concurrent;
+using System.Runtime.InteropServices;
 using SpinSim.Core.LinearAlgebra;
 
 namespace SpinSim.Core.Engine;
@@ -9,7 +11,7 @@ internal readonly record struct Particle(int Entry, int TwiceF, int IsotopeGroup
 
 /// <summary>
 /// Lines of one block pair before merging, in flat arrays. The origin of line k is not stored but derived on demand
-/// from the expected Fz of its two eigenstates (<see cref="AddOrigin"/>), which keeps millions of lines cheap.
+/// from the expected Fz of its two eigenstates (<see cref="AddOrigin"/>), which keeps many lines cheap.
 /// </summary>
 internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[] izLower)
 {
@@ -18,6 +20,13 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
     public readonly List<long> States = []; // upper << 32 | lower
 
     public int Count => FrequencyHz.Count;
+
+    public void Add(double frequencyHz, double intensity, int upper, int lower)
+    {
+        FrequencyHz.Add(frequencyHz);
+        Intensity.Add(intensity);
+        States.Add(((long)upper << 32) | (uint)lower);
+    }
 
     /// <summary>
     /// Adds <paramref name="scale"/> x the origin weights of line <paramref name="k"/> to <paramref name="row"/> (one slot
@@ -32,6 +41,76 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
         var count = observedEntries.Length;
         for (var i = 0; i < count; i++)
             row[observedEntries[i]] += scale * (izUpper[a * count + i] - izLower[b * count + i]);
+    }
+}
+
+/// <summary>
+/// Lines below the engine's floor, pooled into bins [k w, (k + 1) w) of fixed width w. A bin keeps the sums of their
+/// intensities, of intensity x frequency and of intensity x origin weight per entry, so the sum rule, the first moment
+/// and the integrals stay exact while a fully coupled cluster's tens of millions of weak lines cost one bin per width.
+/// Not thread-safe: each block pair fills its own and the solver merges them under a lock.
+/// </summary>
+internal sealed class LinePools(int entryCount, double widthHz)
+{
+    private readonly Dictionary<long, int> _slotOfBin = [];
+    private readonly List<long> _bin = [];
+    private readonly List<double> _intensity = [];
+    private readonly List<double> _moment = [];
+    private readonly List<double> _origin = []; // [slot * entryCount + entry]
+
+    public int Count => _bin.Count;
+
+    /// <summary>How many lines went into the pools.</summary>
+    public long LineCount { get; private set; }
+
+    /// <summary>Adds one line; its origin weights are the changes of the observed entries' expected Fz.</summary>
+    public void Add(double frequencyHz, double intensity, int[] observedEntries, ReadOnlySpan<double> izUpper, ReadOnlySpan<double> izLower)
+    {
+        var origin = Slot((long)Math.Floor(frequencyHz / widthHz), intensity, intensity * frequencyHz, 1);
+        for (var i = 0; i < observedEntries.Length; i++) origin[observedEntries[i]] += intensity * (izUpper[i] - izLower[i]);
+    }
+
+    public void MergeFrom(LinePools other)
+    {
+        for (var k = 0; k < other.Count; k++)
+        {
+            var origin = Slot(other._bin[k], other._intensity[k], other._moment[k], 0);
+            for (var e = 0; e < entryCount; e++) origin[e] += other._origin[k * entryCount + e];
+        }
+        LineCount += other.LineCount;
+    }
+
+    /// <summary>One line per bin at the intensity-weighted mean frequency, sorted, with origin rows normalised to sum 1.</summary>
+    public (Line[] Lines, double[] Origin) ToLines(double observeMHz)
+    {
+        var order = Enumerable.Range(0, Count).OrderBy(k => _bin[k]).ToArray();
+        var lines = new Line[Count];
+        var origin = new double[(long)Count * entryCount];
+        for (var i = 0; i < order.Length; i++)
+        {
+            var k = order[i];
+            var f = _moment[k] / _intensity[k];
+            lines[i] = new Line(f, f / observeMHz, _intensity[k]);
+            for (var e = 0; e < entryCount; e++) origin[(long)i * entryCount + e] = _origin[k * entryCount + e] / _intensity[k];
+        }
+        return (lines, origin);
+    }
+
+    private Span<double> Slot(long bin, double intensity, double moment, long lines)
+    {
+        if (!_slotOfBin.TryGetValue(bin, out var slot))
+        {
+            slot = _bin.Count;
+            _slotOfBin[bin] = slot;
+            _bin.Add(bin);
+            _intensity.Add(0);
+            _moment.Add(0);
+            for (var e = 0; e < entryCount; e++) _origin.Add(0);
+        }
+        _intensity[slot] += intensity;
+        _moment[slot] += moment;
+        LineCount += lines;
+        return CollectionsMarshal.AsSpan(_origin).Slice(slot * entryCount, entryCount);
     }
 }
 
@@ -72,7 +151,15 @@ internal sealed class SubspectrumSolver
     /// <summary>Sizes of the blocks this solver will diagonalise, without building them.</summary>
     public IReadOnlyList<int> BlockSizes() => Partition().Blocks.Select(b => b.Length).ToArray();
 
-    public RawLines[] Solve(double weight, double intensityFloor, CancellationToken cancel)
+    /// <summary>
+    /// Transitions whose amplitude is below 1e-10 (intensity 1e-20 per unit weight) are taken as zero and dropped:
+    /// eigenvector roundoff gives forbidden transitions amplitudes of order 1e-15 to 1e-13, and a real line that weak
+    /// is 1e-20 of a single-spin line, so the intensity left out is far below any tolerance of the sum rule.
+    /// </summary>
+    internal const double ZeroIntensityPerWeight = 1e-20;
+
+    /// <summary>The lines of every observed block pair, and the weak lines below <paramref name="intensityFloor"/> added to <paramref name="pools"/>.</summary>
+    public RawLines[] Solve(double weight, double intensityFloor, LinePools pools, double poolWidthHz, CancellationToken cancel)
     {
         var (blocks, keyOf, lowerKeyStep) = Partition();
         var blockIndexOfKey = new Dictionary<long, int>();
@@ -94,8 +181,11 @@ internal sealed class SubspectrumSolver
                 needed[b] = needed[lower] = true;
             }
 
+        // Largest first, one block per take: the default partitioning of an array hands out ranges, which left one
+        // core idle while the other worked through the large blocks of a fully coupled cluster.
         var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
-        Parallel.ForEach(order, new ParallelOptions { CancellationToken = cancel }, b =>
+        var parallel = new ParallelOptions { CancellationToken = cancel };
+        Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b =>
         {
             var n = blocks[b].Length;
             var h = BuildBlock(blocks[b], local);
@@ -107,13 +197,18 @@ internal sealed class SubspectrumSolver
 
         var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
         var iz = new double[blocks.Count][];
-        Parallel.ForEach(order, new ParallelOptions { CancellationToken = cancel }, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
+        Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
 
         var results = new RawLines[pairs.Count];
-        Parallel.For(0, pairs.Count, new ParallelOptions { CancellationToken = cancel }, k =>
+        var pairOrder = Enumerable.Range(0, pairs.Count)
+            .OrderByDescending(k => (double)blocks[pairs[k].Lower].Length * blocks[pairs[k].Lower].Length * blocks[pairs[k].Upper].Length).ToArray();
+        Parallel.ForEach(Partitioner.Create(pairOrder, EnumerablePartitionerOptions.NoBuffering), parallel, k =>
         {
             var (u, l) = pairs[k];
-            results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed, weight, intensityFloor);
+            var weak = new LinePools(_entryCount, poolWidthHz);
+            results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed,
+                weight, intensityFloor, weak);
+            lock (pools) pools.MergeFrom(weak);
         });
         return results;
     }
@@ -198,7 +293,8 @@ internal sealed class SubspectrumSolver
     }
 
     private RawLines Transitions(int[] upperCodes, int[] lowerCodes, double[] vUpper, double[] vLower,
-        double[] eUpper, double[] eLower, double[] izUpper, double[] izLower, int[] local, int[] observed, double weight, double intensityFloor)
+        double[] eUpper, double[] eLower, double[] izUpper, double[] izLower, int[] local, int[] observed, double weight, double intensityFloor,
+        LinePools weak)
     {
         int nu = upperCodes.Length, nl = lowerCodes.Length;
 
@@ -226,16 +322,18 @@ internal sealed class SubspectrumSolver
         var t = new double[(long)nl * nu];
         _backend.MultiplyTransposedA(nl, nu, nl, vLower, x, t);
 
-        var lines = new RawLines(observed.Select(p => _particles[p].Entry).ToArray(), izUpper, izLower);
+        var observedEntries = observed.Select(p => _particles[p].Entry).ToArray();
+        var lines = new RawLines(observedEntries, izUpper, izLower);
+        var zero = ZeroIntensityPerWeight * weight;
+        var count = observed.Length;
         for (var a = 0; a < nu; a++)
             for (var b = 0; b < nl; b++)
             {
                 var amplitude = t[b + (long)a * nl];
                 var intensity = weight * amplitude * amplitude;
-                if (intensity <= intensityFloor) continue;
-                lines.FrequencyHz.Add(eUpper[a] - eLower[b]);
-                lines.Intensity.Add(intensity);
-                lines.States.Add(((long)a << 32) | (uint)b);
+                if (intensity > intensityFloor) lines.Add(eUpper[a] - eLower[b], intensity, a, b);
+                else if (intensity > zero)
+                    weak.Add(eUpper[a] - eLower[b], intensity, observedEntries, izUpper.AsSpan(a * count, count), izLower.AsSpan(b * count, count));
             }
         return lines;
     }
