@@ -151,6 +151,17 @@ internal sealed class SubspectrumSolver
     /// <summary>Sizes of the blocks this solver will diagonalise, without building them.</summary>
     public IReadOnlyList<int> BlockSizes() => Partition().Blocks.Select(b => b.Length).ToArray();
 
+    /// <summary>The largest block of H as <see cref="IDenseBackend.SymmetricEigen"/> receives it (for the dense-rate benchmarks).</summary>
+    internal (int Size, double[] Matrix) LargestBlock()
+    {
+        var blocks = Partition().Blocks;
+        var local = new int[_totalStates];
+        foreach (var codes in blocks)
+            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
+        var largest = blocks.MaxBy(b => b.Length)!;
+        return (largest.Length, BuildBlock(largest, local));
+    }
+
     /// <summary>
     /// Transitions whose amplitude is below 1e-10 (intensity 1e-20 per unit weight) are taken as zero and dropped:
     /// eigenvector roundoff gives forbidden transitions amplitudes of order 1e-15 to 1e-13, and a real line that weak
