@@ -55,7 +55,7 @@ public static class SpectrumEngine
         var raw = new RawLines[work.Count][];
         var pools = new LinePools(system.Nuclei.Count, options.PoolWidthHz);
         var sizes = new IReadOnlyList<int>[work.Count];
-        Parallel.For(0, work.Count, new ParallelOptions { CancellationToken = cancel }, k =>
+        Parallel.For(0, work.Count, new ParallelOptions { CancellationToken = cancel, MaxDegreeOfParallelism = Environment.ProcessorCount }, k =>
         {
             var (combination, weight) = work[k];
             var solver = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, system.Nuclei.Count, backend);

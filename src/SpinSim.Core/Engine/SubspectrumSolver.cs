@@ -50,14 +50,53 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
 /// and the integrals stay exact while a fully coupled cluster's tens of millions of weak lines cost one bin per width.
 /// Not thread-safe: each block pair fills its own and the solver merges them under a lock.
 /// </summary>
-internal sealed class LinePools(int entryCount, double widthHz)
+internal sealed class LinePools
 {
+    // A block pair's lines lie in a known frequency range; when its bins fit in this many doubles they are kept in
+    // dense arrays, which is several times faster than a dictionary for the ten million weak lines of a 14-spin pair.
+    private const long DenseLimitDoubles = 8L << 20;
+
+    private readonly int _entryCount;
+    private readonly double _widthHz;
+
+    // Sparse form: a slot per bin met.
     private readonly Dictionary<long, int> _slotOfBin = [];
     private readonly List<long> _bin = [];
     private readonly List<double> _intensity = [];
     private readonly List<double> _moment = [];
     private readonly List<double> _origin = []; // [slot * entryCount + entry]
 
+    // Dense form: bins _firstBin .. _firstBin + length - 1.
+    private readonly long _firstBin;
+    private readonly double[]? _denseIntensity;
+    private readonly double[]? _denseMoment;
+    private readonly double[]? _denseOrigin;
+
+    public LinePools(int entryCount, double widthHz)
+    {
+        _entryCount = entryCount;
+        _widthHz = widthHz;
+    }
+
+    private LinePools(int entryCount, double widthHz, long firstBin, int bins) : this(entryCount, widthHz)
+    {
+        _firstBin = firstBin;
+        _denseIntensity = new double[bins];
+        _denseMoment = new double[bins];
+        _denseOrigin = new double[(long)bins * entryCount];
+    }
+
+    /// <summary>Pools for lines between <paramref name="lowHz"/> and <paramref name="highHz"/>: dense when the range is small enough.</summary>
+    public static LinePools ForRange(int entryCount, double widthHz, double lowHz, double highHz)
+    {
+        var first = BinOf(lowHz, widthHz);
+        var bins = BinOf(highHz, widthHz) - first + 1;
+        return bins * (entryCount + 2) <= DenseLimitDoubles ? new LinePools(entryCount, widthHz, first, (int)bins) : new LinePools(entryCount, widthHz);
+    }
+
+    private static long BinOf(double frequencyHz, double widthHz) => (long)Math.Floor(frequencyHz / widthHz);
+
+    /// <summary>Number of bins holding lines (sparse form only; the solver's shared pools are sparse).</summary>
     public int Count => _bin.Count;
 
     /// <summary>How many lines went into the pools.</summary>
@@ -66,16 +105,39 @@ internal sealed class LinePools(int entryCount, double widthHz)
     /// <summary>Adds one line; its origin weights are the changes of the observed entries' expected Fz.</summary>
     public void Add(double frequencyHz, double intensity, int[] observedEntries, ReadOnlySpan<double> izUpper, ReadOnlySpan<double> izLower)
     {
-        var origin = Slot((long)Math.Floor(frequencyHz / widthHz), intensity, intensity * frequencyHz, 1);
+        var bin = BinOf(frequencyHz, _widthHz);
+        Span<double> origin;
+        if (_denseIntensity is not null)
+        {
+            var k = (int)(bin - _firstBin);
+            _denseIntensity[k] += intensity;
+            _denseMoment![k] += intensity * frequencyHz;
+            origin = _denseOrigin.AsSpan((int)((long)k * _entryCount), _entryCount);
+            LineCount++;
+        }
+        else origin = Slot(bin, intensity, intensity * frequencyHz, 1);
         for (var i = 0; i < observedEntries.Length; i++) origin[observedEntries[i]] += intensity * (izUpper[i] - izLower[i]);
     }
 
     public void MergeFrom(LinePools other)
     {
-        for (var k = 0; k < other.Count; k++)
+        if (other._denseIntensity is { } intensity)
         {
-            var origin = Slot(other._bin[k], other._intensity[k], other._moment[k], 0);
-            for (var e = 0; e < entryCount; e++) origin[e] += other._origin[k * entryCount + e];
+            for (var k = 0; k < intensity.Length; k++)
+            {
+                if (intensity[k] == 0) continue;
+                var origin = Slot(other._firstBin + k, intensity[k], other._denseMoment![k], 0);
+                var from = other._denseOrigin.AsSpan((int)((long)k * _entryCount), _entryCount);
+                for (var e = 0; e < _entryCount; e++) origin[e] += from[e];
+            }
+        }
+        else
+        {
+            for (var k = 0; k < other.Count; k++)
+            {
+                var origin = Slot(other._bin[k], other._intensity[k], other._moment[k], 0);
+                for (var e = 0; e < _entryCount; e++) origin[e] += other._origin[k * _entryCount + e];
+            }
         }
         LineCount += other.LineCount;
     }
@@ -85,13 +147,13 @@ internal sealed class LinePools(int entryCount, double widthHz)
     {
         var order = Enumerable.Range(0, Count).OrderBy(k => _bin[k]).ToArray();
         var lines = new Line[Count];
-        var origin = new double[(long)Count * entryCount];
+        var origin = new double[(long)Count * _entryCount];
         for (var i = 0; i < order.Length; i++)
         {
             var k = order[i];
             var f = _moment[k] / _intensity[k];
             lines[i] = new Line(f, f / observeMHz, _intensity[k]);
-            for (var e = 0; e < entryCount; e++) origin[(long)i * entryCount + e] = _origin[k * entryCount + e] / _intensity[k];
+            for (var e = 0; e < _entryCount; e++) origin[(long)i * _entryCount + e] = _origin[k * _entryCount + e] / _intensity[k];
         }
         return (lines, origin);
     }
@@ -105,12 +167,12 @@ internal sealed class LinePools(int entryCount, double widthHz)
             _bin.Add(bin);
             _intensity.Add(0);
             _moment.Add(0);
-            for (var e = 0; e < entryCount; e++) _origin.Add(0);
+            for (var e = 0; e < _entryCount; e++) _origin.Add(0);
         }
         _intensity[slot] += intensity;
         _moment[slot] += moment;
         LineCount += lines;
-        return CollectionsMarshal.AsSpan(_origin).Slice(slot * entryCount, entryCount);
+        return CollectionsMarshal.AsSpan(_origin).Slice(slot * _entryCount, _entryCount);
     }
 }
 
@@ -195,7 +257,9 @@ internal sealed class SubspectrumSolver
         // Largest first, one block per take: the default partitioning of an array hands out ranges, which left one
         // core idle while the other worked through the large blocks of a fully coupled cluster.
         var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
-        var parallel = new ParallelOptions { CancellationToken = cancel };
+        // At most one dense solve per core: the thread pool adds threads when work items run long, and more
+        // concurrent solves than cores only lengthen the largest block's turn.
+        var parallel = new ParallelOptions { CancellationToken = cancel, MaxDegreeOfParallelism = Environment.ProcessorCount };
         Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b =>
         {
             var n = blocks[b].Length;
@@ -216,7 +280,8 @@ internal sealed class SubspectrumSolver
         Parallel.ForEach(Partitioner.Create(pairOrder, EnumerablePartitionerOptions.NoBuffering), parallel, k =>
         {
             var (u, l) = pairs[k];
-            var weak = new LinePools(_entryCount, poolWidthHz);
+            // Eigenvalues are ascending, so the pair's lines lie between these two frequencies.
+            var weak = LinePools.ForRange(_entryCount, poolWidthHz, energies[u][0] - energies[l][^1], energies[u][^1] - energies[l][0]);
             results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed,
                 weight, intensityFloor, weak);
             lock (pools) pools.MergeFrom(weak);
