@@ -52,8 +52,10 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
 /// </summary>
 internal sealed class LinePools
 {
-    // A block pair's lines lie in a known frequency range; when its bins fit in this many doubles they are kept in
-    // dense arrays, which is several times faster than a dictionary for the ten million weak lines of a 14-spin pair.
+    // A block pair's lines lie in a known frequency range. When the pair has more transitions than that range has
+    // bins, and the bins fit in this many doubles, they are kept in dense arrays: several times faster than a
+    // dictionary for the ten million weak lines of a 14-spin pair, and never a waste for the thousands of small
+    // pairs of a split molecule, which stay sparse.
     private const long DenseLimitDoubles = 8L << 20;
 
     private readonly int _entryCount;
@@ -86,12 +88,14 @@ internal sealed class LinePools
         _denseOrigin = new double[(long)bins * entryCount];
     }
 
-    /// <summary>Pools for lines between <paramref name="lowHz"/> and <paramref name="highHz"/>: dense when the range is small enough.</summary>
-    public static LinePools ForRange(int entryCount, double widthHz, double lowHz, double highHz)
+    /// <summary>Pools for up to <paramref name="transitions"/> lines between <paramref name="lowHz"/> and <paramref name="highHz"/>.</summary>
+    public static LinePools ForRange(int entryCount, double widthHz, double lowHz, double highHz, long transitions)
     {
         var first = BinOf(lowHz, widthHz);
         var bins = BinOf(highHz, widthHz) - first + 1;
-        return bins * (entryCount + 2) <= DenseLimitDoubles ? new LinePools(entryCount, widthHz, first, (int)bins) : new LinePools(entryCount, widthHz);
+        return bins <= transitions && bins * (entryCount + 2) <= DenseLimitDoubles
+            ? new LinePools(entryCount, widthHz, first, (int)bins)
+            : new LinePools(entryCount, widthHz);
     }
 
     private static long BinOf(double frequencyHz, double widthHz) => (long)Math.Floor(frequencyHz / widthHz);
@@ -281,7 +285,8 @@ internal sealed class SubspectrumSolver
         {
             var (u, l) = pairs[k];
             // Eigenvalues are ascending, so the pair's lines lie between these two frequencies.
-            var weak = LinePools.ForRange(_entryCount, poolWidthHz, energies[u][0] - energies[l][^1], energies[u][^1] - energies[l][0]);
+            var weak = LinePools.ForRange(_entryCount, poolWidthHz, energies[u][0] - energies[l][^1], energies[u][^1] - energies[l][0],
+                (long)energies[u].Length * energies[l].Length);
             results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed,
                 weight, intensityFloor, weak);
             lock (pools) pools.MergeFrom(weak);
