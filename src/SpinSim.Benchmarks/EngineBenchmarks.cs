@@ -30,6 +30,27 @@ public class EngineBenchmarks
     public int TransitionList() => SpectrumEngine.Compute(_system, _options).Lines.Count;
 }
 
+/// <summary>
+/// Time and managed memory against N for fully coupled systems, 8 to 14 spins, native backend only (the managed
+/// solver needs minutes beyond 12 spins). The largest block, C(N, N/2) states, sets the cost: C(N, N/2)^3 grows by
+/// about 2^3 per two spins. N = 14 is issue 8's target of under 60 s and 4 GiB; its peak working set comes from a
+/// separate run, <c>dotnet run -c Release --project src/SpinSim.Benchmarks -- peak 14</c>.
+/// </summary>
+[MemoryDiagnoser]
+public class FullyCoupledScalingBenchmarks
+{
+    [Params(8, 9, 10, 11, 12, 13, 14)]
+    public int Spins { get; set; }
+
+    private SpinSystem _system = null!;
+
+    [GlobalSetup]
+    public void Setup() => _system = Systems.FullyCoupled(Spins);
+
+    [Benchmark]
+    public int TransitionList() => SpectrumEngine.Compute(_system).Lines.Count;
+}
+
 /// <summary>Two methyl groups and a tert-butyl group coupled to a CH and a CH2: the composite-particle path.</summary>
 [MemoryDiagnoser]
 public class EquivalentSetBenchmarks

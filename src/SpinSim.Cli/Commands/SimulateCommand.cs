@@ -75,7 +75,7 @@ public static class SimulateCommand
                 io.Out.WriteLine($"backend: {result.Backend}");
                 foreach (var note in result.Notes) io.Out.WriteLine($"engine: {note}");
                 io.Out.WriteLine($"blocks: {result.Blocks}, largest {result.LargestBlock} states; {elapsed.TotalMilliseconds:0} ms");
-                io.Out.WriteLine($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; dropped below the floor: {result.DroppedIntensity:G3}");
+                io.Out.WriteLine($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; missing (numerical zeros): {result.DroppedIntensity:G3}");
                 if (simulated.NeglectedTailFraction > 0)
                     io.Out.WriteLine($"lines evaluated within +-{settings.CutoffFwhm} widths; the Lorentzian tails left out hold {simulated.NeglectedTailFraction:P2} of each line's area");
             }

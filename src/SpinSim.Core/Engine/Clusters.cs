@@ -12,21 +12,66 @@ namespace SpinSim.Core.Engine;
 /// <param name="LargestCutRatio">Largest |J| / |delta nu| among the homonuclear couplings from this cluster to its spectators (0 when none).</param>
 public sealed record Cluster(int[] Entries, int[] Spectators, double LargestCutRatio);
 
+/// <summary>
+/// A coupling between observed nuclei of two clusters, kept only as J Iz Iz. Its flip-flop term, left out, would move
+/// energy levels by second-order perturbation: a level of entry A (ladder element L_A) and entry B (L_B) moves by
+/// (J/2)^2 L_A^2 L_B^2 / |delta nu|; a line joins two levels pushed in opposite directions, so it moves by up to
+/// twice that. With the largest squared ladder element of n equivalent nuclei, g(n) = floor((n + 1)^2 / 4) (1 for a
+/// single nucleus, 2 for a CH2 set, 4 for a methyl, 25 for a tert-butyl), this gives
+/// <see cref="DisplacementEstimateHz"/> = J^2 g(n_A) g(n_B) / (2 |delta nu|): an estimate, not a bound, since higher
+/// orders and the smaller total spins of the sets (which move less) are not counted.
+/// </summary>
+/// <param name="A">Index of one entry.</param>
+/// <param name="B">Index of the other entry, in another cluster.</param>
+/// <param name="CouplingHz">The coupling J, signed.</param>
+/// <param name="SeparationHz">|nu_A - nu_B| at the system's field.</param>
+/// <param name="DisplacementEstimateHz">Second-order estimate of how far the left-out flip-flop term would move a line, in Hz.</param>
+public sealed record CutCoupling(int A, int B, double CouplingHz, double SeparationHz, double DisplacementEstimateHz)
+{
+    /// <summary>|J| / |delta nu|.</summary>
+    public double Ratio => Math.Abs(CouplingHz) / SeparationHz;
+
+    /// <summary>g(n) = floor((n + 1)^2 / 4): the largest |&lt;m + 1|F+|m&gt;|^2 over the total spins F of n equivalent spin-1/2 nuclei.</summary>
+    public static int LadderSquareFactor(int n) => (n + 1) * (n + 1) / 4;
+}
+
 /// <summary>How a system is split for simulation.</summary>
 /// <param name="Threshold">Couplings with |J| / |delta nu| above this join their nuclei into one cluster; null for no splitting.</param>
-public sealed record ClusterPlan(IReadOnlyList<Cluster> Clusters, double? Threshold)
+/// <param name="Cut">The couplings between observed nuclei of different clusters, treated to first order only (empty when exact).</param>
+public sealed record ClusterPlan(IReadOnlyList<Cluster> Clusters, double? Threshold, IReadOnlyList<CutCoupling> Cut)
 {
     public bool IsExact => Threshold is null;
 
     /// <summary>The largest |J| / |delta nu| that was treated to first order: the size of the splitting error, roughly.</summary>
     public double LargestCutRatio => Clusters.Select(c => c.LargestCutRatio).DefaultIfEmpty(0).Max();
+
+    /// <summary>The cut coupling with the largest |J| / |delta nu|, or null when nothing was cut.</summary>
+    public CutCoupling? StrongestCut => Cut.MaxBy(c => c.Ratio);
+
+    /// <summary>
+    /// Estimated largest line displacement from the cut couplings, in Hz, and the entry whose lines move most: per
+    /// entry the sum of <see cref="CutCoupling.DisplacementEstimateHz"/> over its cut couplings (second-order level
+    /// shifts add). (0, -1) when nothing was cut.
+    /// </summary>
+    public (double Hz, int Entry) LargestDisplacementEstimate()
+    {
+        var perEntry = new Dictionary<int, double>();
+        foreach (var c in Cut)
+        {
+            perEntry[c.A] = perEntry.GetValueOrDefault(c.A) + c.DisplacementEstimateHz;
+            perEntry[c.B] = perEntry.GetValueOrDefault(c.B) + c.DisplacementEstimateHz;
+        }
+        if (perEntry.Count == 0) return (0, -1);
+        var worst = perEntry.MaxBy(kv => (kv.Value, -kv.Key));
+        return (worst.Value, worst.Key);
+    }
 }
 
 public static class ClusterPartition
 {
     /// <summary>The whole system as one cluster: exact.</summary>
     public static ClusterPlan Whole(SpinSystem system) =>
-        new([new Cluster(Enumerable.Range(0, system.Nuclei.Count).ToArray(), [], 0)], null);
+        new([new Cluster(Enumerable.Range(0, system.Nuclei.Count).ToArray(), [], 0)], null, []);
 
     /// <summary>
     /// Splits the coupling network: two entries of the same isotope are in one cluster when |J| / |delta nu| exceeds
@@ -54,6 +99,15 @@ public static class ClusterPartition
                 if (!g.Contains(e) && g.Any(x => j[x, e] != 0)) Union(g[0], e);
 
         var clusters = new List<Cluster>();
+        var cuts = new List<CutCoupling>();
+        for (var a = 0; a < n; a++)
+            for (var b = a + 1; b < n; b++)
+                if (j[a, b] != 0 && Find(a) != Find(b) && system.Nuclei[a].Isotope == system.Observed && system.Nuclei[b].Isotope == system.Observed)
+                {
+                    var separation = Math.Abs(system.FrequencyHz(a) - system.FrequencyHz(b));
+                    var g = CutCoupling.LadderSquareFactor(system.Nuclei[a].Count) * CutCoupling.LadderSquareFactor(system.Nuclei[b].Count);
+                    cuts.Add(new CutCoupling(a, b, j[a, b], separation, j[a, b] * j[a, b] * g / (2 * separation)));
+                }
         foreach (var members in Enumerable.Range(0, n).GroupBy(Find).Select(g => g.ToArray()))
         {
             if (!members.Any(e => system.Nuclei[e].Isotope == system.Observed)) continue;
@@ -65,7 +119,7 @@ public static class ClusterPartition
                         cut = Math.Max(cut, Ratio(system, j, m, s));
             clusters.Add(new Cluster(members, spectators, cut));
         }
-        return new ClusterPlan(clusters, threshold);
+        return new ClusterPlan(clusters, threshold, cuts);
     }
 
     private static bool IsStrong(SpinSystem system, double[,] j, int a, int b, double threshold) =>
@@ -109,6 +163,9 @@ public static class ClusterPartition
         }
         return configurations.Values.Select(v => (v.Shift, v.Weight)).ToList();
     }
+
+    /// <summary>How many times the cluster is diagonalised: its distinct spectator configurations.</summary>
+    public static int SpectatorConfigurationCount(SpinSystem system, Cluster cluster) => SpectatorConfigurations(system, cluster).Count;
 
     private static double Binomial(int n, int k)
     {

@@ -4,7 +4,19 @@ namespace SpinSim.Core.Engine;
 
 /// <summary>How the engine computes a line list.</summary>
 /// <param name="Backend">Dense linear algebra; null picks <see cref="DenseBackends.Default"/>.</param>
-/// <param name="RelativeIntensityFloor">Lines weaker than this fraction of the total intensity N 2^(N-1) are dropped (their sum is reported).</param>
+/// <param name="RelativeIntensityFloor">
+/// Lines weaker than this fraction of the total intensity N 2^(N-1) are not listed one by one but pooled into bins of
+/// <paramref name="PoolWidthHz"/>: one line per bin at the intensity-weighted mean frequency, carrying the summed
+/// intensity and origin, so the sum rule, the first moment and the integrals stay exact. A weak line alone in its bin
+/// keeps its exact frequency. The default 1e-6 is far below anything visible (a 1-proton line of a 40-proton
+/// molecule split 8-fold holds 3e-3 of the total), and it keeps a fully coupled 14-spin cluster, whose tens of
+/// millions of transitions mostly lie below it, to some 10^5 lines instead of tens of millions.
+/// </param>
+/// <param name="PoolWidthHz">
+/// Width of the bins that pool the lines below the floor. A bin moves its lines by at most half of it and, since it
+/// keeps their centroid, changes a trace of linewidth W only by about (width / W)^2 / 2 of their share: 2e-4 at the
+/// default 0.01 Hz and 0.5 Hz lines.
+/// </param>
 /// <param name="MergeToleranceHz">Lines closer than this are merged into one (degenerate transitions).</param>
 /// <param name="MemoryBudgetBytes">Systems whose estimated working memory exceeds this are refused.</param>
 /// <param name="Splitting">Exact (one cluster), Split (weak-coupling clusters) or Auto (exact while cheap).</param>
@@ -12,12 +24,13 @@ namespace SpinSim.Core.Engine;
 /// <param name="AutoExactLargestBlock">In Auto mode, systems whose largest exact block has at most this many states are simulated exactly.</param>
 public sealed record EngineOptions(
     IDenseBackend? Backend = null,
-    double RelativeIntensityFloor = 1e-10,
+    double RelativeIntensityFloor = 1e-6,
     double MergeToleranceHz = 1e-6,
     long MemoryBudgetBytes = 4L << 30,
     ClusterSplitting Splitting = ClusterSplitting.Auto,
     double WeakCouplingRatio = 0.05,
-    int AutoExactLargestBlock = 256)
+    int AutoExactLargestBlock = 256,
+    double PoolWidthHz = 0.01)
 {
     public static EngineOptions Default { get; } = new();
 

@@ -39,8 +39,11 @@ public sealed class LineList
 
     public double TotalIntensity { get; }
 
-    /// <summary>Intensity of lines below the engine's floor, which were not kept.</summary>
+    /// <summary>Intensity missing from the list: transitions taken as numerically zero, and rounding.</summary>
     public double DroppedIntensity => Math.Max(0, ExpectedTotalIntensity - TotalIntensity);
+
+    /// <summary>How many of the lines are pools of lines below the engine's floor (see <see cref="EngineOptions.RelativeIntensityFloor"/>).</summary>
+    public int PooledLines { get; init; }
 
     public int LargestBlock { get; }
     public int Blocks { get; }

@@ -27,6 +27,8 @@ public static class SpectrumEngine
 
     public static LineList Compute(SpinSystem system, ClusterPlan plan, EngineOptions options, CancellationToken cancel = default)
     {
+        if (!(options.PoolWidthHz > 0) || !double.IsFinite(options.PoolWidthHz))
+            throw new ArgumentOutOfRangeException(nameof(options), options.PoolWidthHz, "the pooling width must be positive and finite");
         foreach (var cluster in plan.Clusters)
         {
             var estimate = ResourceEstimate.For(system, cluster.Entries);
@@ -51,30 +53,36 @@ public static class SpectrumEngine
         }
 
         var raw = new RawLines[work.Count][];
+        var pools = new LinePools(system.Nuclei.Count, options.PoolWidthHz);
         var sizes = new IReadOnlyList<int>[work.Count];
         var solvers = work.Select(w => new SubspectrumSolver(w.Combination.Particles, w.Combination.CouplingsHz, system.Nuclei.Count, backend)).ToArray();
         // Many small subspectra are cheaper on one thread than handed between threads.
         var parallel = new ParallelOptions
         {
             CancellationToken = cancel,
-            MaxDegreeOfParallelism = solvers.Sum(s => (long)s.StateCount) >= SubspectrumSolver.ParallelBlockSize * 64 ? -1 : 1,
+            MaxDegreeOfParallelism = solvers.Sum(s => (long)s.StateCount) >= SubspectrumSolver.ParallelBlockSize * 64 ? Environment.ProcessorCount : 1,
         };
         Parallel.For(0, work.Count, parallel, k =>
         {
             var (_, weight) = work[k];
             var solver = solvers[k];
             sizes[k] = solver.BlockSizes();
-            raw[k] = solver.Solve(weight, floor, cancel);
+            raw[k] = solver.Solve(weight, floor, pools, options.PoolWidthHz, cancel);
         });
         var largest = sizes.SelectMany(s => s).DefaultIfEmpty(0).Max();
         var blocks = sizes.Sum(s => s.Count);
 
-        var (lines, origin) = Merge(raw.SelectMany(r => r).ToList(), system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
+        var (lines, origin) = Merge(raw.SelectMany(r => r).ToList(), pools, system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
+        var pooled = pools.Count;
         var notes = plan.IsExact ? new List<string> { "exact: the whole system was diagonalised as one" } : new List<string>
         {
-            $"split into {plan.Clusters.Count} cluster(s) at |J/dnu| > {plan.Threshold}; the largest coupling treated to first order has |J/dnu| = {plan.LargestCutRatio:0.###}",
+            $"split into {plan.Clusters.Count} cluster(s) at |J/dnu| > {plan.Threshold}; the largest coupling treated to first order has |J/dnu| = {plan.LargestCutRatio:0.###}" +
+            $"; estimated largest line displacement {plan.LargestDisplacementEstimate().Hz:0.###} Hz",
         };
-        return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, notes);
+        if (pooled > 0)
+            notes.Add($"{pools.LineCount} lines below {options.RelativeIntensityFloor:G3} of the total intensity were pooled into {pooled} bins " +
+                      $"of {options.PoolWidthHz:G3} Hz, listed at their intensity-weighted mean frequency (a line alone in its bin keeps its own)");
+        return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, notes) { PooledLines = pooled };
     }
 
     /// <summary>Tr(F+ F-) = N 2^(N-1) for N observed spin-1/2 nuclei, times 2^M for M unobserved ones.</summary>
@@ -125,9 +133,32 @@ public static class SpectrumEngine
         }
     }
 
-    /// <summary>Sorts all raw lines by frequency and merges runs closer than <paramref name="toleranceHz"/> into one line
-    /// at their intensity-weighted mean frequency, with intensity-weighted origin.</summary>
-    internal static (Line[] Lines, double[] Origin) Merge(IReadOnlyList<RawLines> chunks, int entryCount, double toleranceHz, double observeMHz)
+    /// <summary>
+    /// Sorts all raw lines by frequency and merges runs closer than <paramref name="toleranceHz"/> into one line at their
+    /// intensity-weighted mean frequency, with intensity-weighted origin; the pools of weak lines (one line per bin) are
+    /// listed among them by frequency.
+    /// </summary>
+    internal static (Line[] Lines, double[] Origin) Merge(IReadOnlyList<RawLines> chunks, LinePools pools, int entryCount, double toleranceHz, double observeMHz)
+    {
+        var (lines, origin) = MergeExact(chunks, entryCount, toleranceHz, observeMHz);
+        if (pools.Count == 0) return (lines, origin);
+        var (weak, weakOrigin) = pools.ToLines(observeMHz);
+
+        // Both lists are sorted by frequency: interleave them.
+        var allLines = new Line[lines.Length + weak.Length];
+        var allOrigin = new double[(long)allLines.Length * entryCount];
+        int i = 0, j = 0;
+        for (var k = 0; k < allLines.Length; k++)
+        {
+            var takeExact = j == weak.Length || (i < lines.Length && lines[i].FrequencyHz <= weak[j].FrequencyHz);
+            var (from, fromOrigin, index) = takeExact ? (lines, origin, i++) : (weak, weakOrigin, j++);
+            allLines[k] = from[index];
+            Array.Copy(fromOrigin, (long)index * entryCount, allOrigin, (long)k * entryCount, entryCount);
+        }
+        return (allLines, allOrigin);
+    }
+
+    private static (Line[] Lines, double[] Origin) MergeExact(IReadOnlyList<RawLines> chunks, int entryCount, double toleranceHz, double observeMHz)
     {
         var count = chunks.Sum(c => c.Count);
         var frequency = new double[count];

@@ -1,3 +1,5 @@
+using System.Collections.Concurrent;
+using System.Runtime.InteropServices;
 using SpinSim.Core.LinearAlgebra;
 
 namespace SpinSim.Core.Engine;
@@ -9,7 +11,7 @@ internal readonly record struct Particle(int Entry, int TwiceF, int IsotopeGroup
 
 /// <summary>
 /// Lines of one block pair before merging, in flat arrays. The origin of line k is not stored but derived on demand
-/// from the expected Fz of its two eigenstates (<see cref="AddOrigin"/>), which keeps millions of lines cheap.
+/// from the expected Fz of its two eigenstates (<see cref="AddOrigin"/>), which keeps many lines cheap.
 /// </summary>
 internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[] izLower)
 {
@@ -18,6 +20,13 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
     public readonly List<long> States = []; // upper << 32 | lower
 
     public int Count => FrequencyHz.Count;
+
+    public void Add(double frequencyHz, double intensity, int upper, int lower)
+    {
+        FrequencyHz.Add(frequencyHz);
+        Intensity.Add(intensity);
+        States.Add(((long)upper << 32) | (uint)lower);
+    }
 
     /// <summary>
     /// Adds <paramref name="scale"/> x the origin weights of line <paramref name="k"/> to <paramref name="row"/> (one slot
@@ -32,6 +41,142 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
         var count = observedEntries.Length;
         for (var i = 0; i < count; i++)
             row[observedEntries[i]] += scale * (izUpper[a * count + i] - izLower[b * count + i]);
+    }
+}
+
+/// <summary>
+/// Lines below the engine's floor, pooled into bins [k w, (k + 1) w) of fixed width w. A bin keeps the sums of their
+/// intensities, of intensity x frequency and of intensity x origin weight per entry, so the sum rule, the first moment
+/// and the integrals stay exact while a fully coupled cluster's tens of millions of weak lines cost one bin per width.
+/// Not thread-safe: each block pair fills its own and the solver merges them under a lock.
+/// </summary>
+internal sealed class LinePools
+{
+    // A block pair's lines lie in a known frequency range. When the pair has more transitions than that range has
+    // bins, and the bins fit in this many doubles, they are kept in dense arrays: several times faster than a
+    // dictionary for the ten million weak lines of a 14-spin pair, and never a waste for the thousands of small
+    // pairs of a split molecule, which stay sparse.
+    private const long DenseLimitDoubles = 8L << 20;
+
+    private readonly int _entryCount;
+    private readonly double _widthHz;
+
+    // Sparse form: a slot per bin met.
+    private readonly Dictionary<long, int> _slotOfBin = [];
+    private readonly List<long> _bin = [];
+    private readonly List<double> _intensity = [];
+    private readonly List<double> _moment = [];
+    private readonly List<double> _origin = []; // [slot * entryCount + entry]
+
+    // Dense form: bins _firstBin .. _firstBin + length - 1.
+    private readonly long _firstBin;
+    private readonly double[]? _denseIntensity;
+    private readonly double[]? _denseMoment;
+    private readonly double[]? _denseOrigin;
+
+    public LinePools(int entryCount, double widthHz)
+    {
+        _entryCount = entryCount;
+        _widthHz = widthHz;
+    }
+
+    private LinePools(int entryCount, double widthHz, long firstBin, int bins) : this(entryCount, widthHz)
+    {
+        _firstBin = firstBin;
+        _denseIntensity = new double[bins];
+        _denseMoment = new double[bins];
+        _denseOrigin = new double[(long)bins * entryCount];
+    }
+
+    /// <summary>Pools for up to <paramref name="transitions"/> lines between <paramref name="lowHz"/> and <paramref name="highHz"/>.</summary>
+    public static LinePools ForRange(int entryCount, double widthHz, double lowHz, double highHz, long transitions)
+    {
+        var first = BinOf(lowHz, widthHz);
+        var bins = BinOf(highHz, widthHz) - first + 1;
+        return bins <= transitions && bins * (entryCount + 2) <= DenseLimitDoubles
+            ? new LinePools(entryCount, widthHz, first, (int)bins)
+            : new LinePools(entryCount, widthHz);
+    }
+
+    private static long BinOf(double frequencyHz, double widthHz) => (long)Math.Floor(frequencyHz / widthHz);
+
+    /// <summary>Number of bins holding lines (sparse form only; the solver's shared pools are sparse).</summary>
+    public int Count => _bin.Count;
+
+    /// <summary>How many lines went into the pools.</summary>
+    public long LineCount { get; private set; }
+
+    /// <summary>Adds one line; its origin weights are the changes of the observed entries' expected Fz.</summary>
+    public void Add(double frequencyHz, double intensity, int[] observedEntries, ReadOnlySpan<double> izUpper, ReadOnlySpan<double> izLower)
+    {
+        var bin = BinOf(frequencyHz, _widthHz);
+        Span<double> origin;
+        if (_denseIntensity is not null)
+        {
+            var k = (int)(bin - _firstBin);
+            _denseIntensity[k] += intensity;
+            _denseMoment![k] += intensity * frequencyHz;
+            origin = _denseOrigin.AsSpan((int)((long)k * _entryCount), _entryCount);
+            LineCount++;
+        }
+        else origin = Slot(bin, intensity, intensity * frequencyHz, 1);
+        for (var i = 0; i < observedEntries.Length; i++) origin[observedEntries[i]] += intensity * (izUpper[i] - izLower[i]);
+    }
+
+    public void MergeFrom(LinePools other)
+    {
+        if (other._denseIntensity is { } intensity)
+        {
+            for (var k = 0; k < intensity.Length; k++)
+            {
+                if (intensity[k] == 0) continue;
+                var origin = Slot(other._firstBin + k, intensity[k], other._denseMoment![k], 0);
+                var from = other._denseOrigin.AsSpan((int)((long)k * _entryCount), _entryCount);
+                for (var e = 0; e < _entryCount; e++) origin[e] += from[e];
+            }
+        }
+        else
+        {
+            for (var k = 0; k < other.Count; k++)
+            {
+                var origin = Slot(other._bin[k], other._intensity[k], other._moment[k], 0);
+                for (var e = 0; e < _entryCount; e++) origin[e] += other._origin[k * _entryCount + e];
+            }
+        }
+        LineCount += other.LineCount;
+    }
+
+    /// <summary>One line per bin at the intensity-weighted mean frequency, sorted, with origin rows normalised to sum 1.</summary>
+    public (Line[] Lines, double[] Origin) ToLines(double observeMHz)
+    {
+        var order = Enumerable.Range(0, Count).OrderBy(k => _bin[k]).ToArray();
+        var lines = new Line[Count];
+        var origin = new double[(long)Count * _entryCount];
+        for (var i = 0; i < order.Length; i++)
+        {
+            var k = order[i];
+            var f = _moment[k] / _intensity[k];
+            lines[i] = new Line(f, f / observeMHz, _intensity[k]);
+            for (var e = 0; e < _entryCount; e++) origin[(long)i * _entryCount + e] = _origin[k * _entryCount + e] / _intensity[k];
+        }
+        return (lines, origin);
+    }
+
+    private Span<double> Slot(long bin, double intensity, double moment, long lines)
+    {
+        if (!_slotOfBin.TryGetValue(bin, out var slot))
+        {
+            slot = _bin.Count;
+            _slotOfBin[bin] = slot;
+            _bin.Add(bin);
+            _intensity.Add(0);
+            _moment.Add(0);
+            for (var e = 0; e < _entryCount; e++) _origin.Add(0);
+        }
+        _intensity[slot] += intensity;
+        _moment[slot] += moment;
+        LineCount += lines;
+        return CollectionsMarshal.AsSpan(_origin).Slice(slot * _entryCount, _entryCount);
     }
 }
 
@@ -78,7 +223,26 @@ internal sealed class SubspectrumSolver
     /// <summary>Size of the product space of the particles.</summary>
     public int StateCount => _totalStates;
 
-    public RawLines[] Solve(double weight, double intensityFloor, CancellationToken cancel)
+    /// <summary>The largest block of H as <see cref="IDenseBackend.SymmetricEigen"/> receives it (for the dense-rate benchmarks).</summary>
+    internal (int Size, double[] Matrix) LargestBlock()
+    {
+        var blocks = Partition().Blocks;
+        var local = new int[_totalStates];
+        foreach (var codes in blocks)
+            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
+        var largest = blocks.MaxBy(b => b.Length)!;
+        return (largest.Length, BuildBlock(largest, local));
+    }
+
+    /// <summary>
+    /// Transitions whose amplitude is below 1e-10 (intensity 1e-20 per unit weight) are taken as zero and dropped:
+    /// eigenvector roundoff gives forbidden transitions amplitudes of order 1e-15 to 1e-13, and a real line that weak
+    /// is 1e-20 of a single-spin line, so the intensity left out is far below any tolerance of the sum rule.
+    /// </summary>
+    internal const double ZeroIntensityPerWeight = 1e-20;
+
+    /// <summary>The lines of every observed block pair, and the weak lines below <paramref name="intensityFloor"/> added to <paramref name="pools"/>.</summary>
+    public RawLines[] Solve(double weight, double intensityFloor, LinePools pools, double poolWidthHz, CancellationToken cancel)
     {
         var (blocks, keyOf, lowerKeyStep) = Partition();
         var blockIndexOfKey = new Dictionary<long, int>();
@@ -100,10 +264,18 @@ internal sealed class SubspectrumSolver
                 needed[b] = needed[lower] = true;
             }
 
+        // Largest first, one block per take: the default partitioning of an array hands out ranges, which left one
+        // core idle while the other worked through the large blocks of a fully coupled cluster.
         var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
-        // Thread hand-offs cost more than small blocks: below this size one thread does all.
-        var parallel = new ParallelOptions { CancellationToken = cancel, MaxDegreeOfParallelism = order.Length > 0 && blocks[order[0]].Length >= ParallelBlockSize ? -1 : 1 };
-        Parallel.ForEach(order, parallel, b =>
+        // At most one dense solve per core: the thread pool adds threads when work items run long, and more
+        // concurrent solves than cores only lengthen the largest block's turn. Thread hand-offs cost more than small
+        // blocks, so below ParallelBlockSize one thread does all.
+        var parallel = new ParallelOptions
+        {
+            CancellationToken = cancel,
+            MaxDegreeOfParallelism = order.Length > 0 && blocks[order[0]].Length >= ParallelBlockSize ? Environment.ProcessorCount : 1,
+        };
+        Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b =>
         {
             var n = blocks[b].Length;
             var h = BuildBlock(blocks[b], local);
@@ -115,13 +287,20 @@ internal sealed class SubspectrumSolver
 
         var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
         var iz = new double[blocks.Count][];
-        Parallel.ForEach(order, parallel, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
+        Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
 
         var results = new RawLines[pairs.Count];
-        Parallel.For(0, pairs.Count, parallel, k =>
+        var pairOrder = Enumerable.Range(0, pairs.Count)
+            .OrderByDescending(k => (double)blocks[pairs[k].Lower].Length * blocks[pairs[k].Lower].Length * blocks[pairs[k].Upper].Length).ToArray();
+        Parallel.ForEach(Partitioner.Create(pairOrder, EnumerablePartitionerOptions.NoBuffering), parallel, k =>
         {
             var (u, l) = pairs[k];
-            results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed, weight, intensityFloor);
+            // Eigenvalues are ascending, so the pair's lines lie between these two frequencies.
+            var weak = LinePools.ForRange(_entryCount, poolWidthHz, energies[u][0] - energies[l][^1], energies[u][^1] - energies[l][0],
+                (long)energies[u].Length * energies[l].Length);
+            results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed,
+                weight, intensityFloor, weak);
+            lock (pools) pools.MergeFrom(weak);
         });
         return results;
     }
@@ -206,7 +385,8 @@ internal sealed class SubspectrumSolver
     }
 
     private RawLines Transitions(int[] upperCodes, int[] lowerCodes, double[] vUpper, double[] vLower,
-        double[] eUpper, double[] eLower, double[] izUpper, double[] izLower, int[] local, int[] observed, double weight, double intensityFloor)
+        double[] eUpper, double[] eLower, double[] izUpper, double[] izLower, int[] local, int[] observed, double weight, double intensityFloor,
+        LinePools weak)
     {
         int nu = upperCodes.Length, nl = lowerCodes.Length;
 
@@ -234,16 +414,18 @@ internal sealed class SubspectrumSolver
         var t = new double[(long)nl * nu];
         _backend.MultiplyTransposedA(nl, nu, nl, vLower, x, t);
 
-        var lines = new RawLines(observed.Select(p => _particles[p].Entry).ToArray(), izUpper, izLower);
+        var observedEntries = observed.Select(p => _particles[p].Entry).ToArray();
+        var lines = new RawLines(observedEntries, izUpper, izLower);
+        var zero = ZeroIntensityPerWeight * weight;
+        var count = observed.Length;
         for (var a = 0; a < nu; a++)
             for (var b = 0; b < nl; b++)
             {
                 var amplitude = t[b + (long)a * nl];
                 var intensity = weight * amplitude * amplitude;
-                if (intensity <= intensityFloor) continue;
-                lines.FrequencyHz.Add(eUpper[a] - eLower[b]);
-                lines.Intensity.Add(intensity);
-                lines.States.Add(((long)a << 32) | (uint)b);
+                if (intensity > intensityFloor) lines.Add(eUpper[a] - eLower[b], intensity, a, b);
+                else if (intensity > zero)
+                    weak.Add(eUpper[a] - eLower[b], intensity, observedEntries, izUpper.AsSpan(a * count, count), izLower.AsSpan(b * count, count));
             }
         return lines;
     }

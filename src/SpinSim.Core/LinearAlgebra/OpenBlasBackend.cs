@@ -58,11 +58,19 @@ public sealed unsafe class OpenBlasBackend : IDenseBackend
             if (info != 0) throw new InvalidOperationException($"dsyevd workspace query failed (info {info})");
             lwork = (int)workQuery;
             liwork = iworkQuery;
-            var work = new double[lwork];
-            var iwork = new int[liwork];
-            fixed (double* pw = work)
-            fixed (int* piw = iwork)
-                Dsyevd(&jobz, &uplo, &n, a, &lda, w, pw, &lwork, piw, &liwork, &info, 1, 1);
+            // The workspace (about 2 n^2 doubles: 190 MB at n = 3432) is native and freed at once, so it neither
+            // waits for a garbage collection nor counts towards the managed heap of a large run.
+            var work = (double*)NativeMemory.Alloc((nuint)lwork, sizeof(double));
+            var iwork = (int*)NativeMemory.Alloc((nuint)liwork, sizeof(int));
+            try
+            {
+                Dsyevd(&jobz, &uplo, &n, a, &lda, w, work, &lwork, iwork, &liwork, &info, 1, 1);
+            }
+            finally
+            {
+                NativeMemory.Free(work);
+                NativeMemory.Free(iwork);
+            }
         }
         if (info != 0) throw new InvalidOperationException($"dsyevd failed to converge (info {info}) on a {n} x {n} block");
     }

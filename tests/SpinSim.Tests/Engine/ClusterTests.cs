@@ -108,6 +108,54 @@ public class ClusterTests
         Assert.Equal(cut, plan.LargestCutRatio, 12);
     }
 
+    [Theory]
+    [InlineData(1, 1, 6.8, 1.68, 0.88)]
+    [InlineData(1, 3, 6.8, 1.68, 0.88)]
+    [InlineData(1, 6, 6.8, 1.68, 0.88)]
+    [InlineData(2, 3, 7.0, 4.01, 1.40)]
+    [InlineData(1, 9, 0.6, 7.20, 1.31)]
+    public void DisplacementEstimateCoversHowFarTheStrongLinesMove(int countX, int countA, double jHz, double shiftX, double shiftA)
+    {
+        // Second-order perturbation theory (common practice, no source): the left-out flip-flop term moves lines by
+        // about J^2 g_X g_A / (2 |dnu|). Checked against the exact engine for X_m A_n pairs split at |J/dnu| of 0.002 to
+        // 0.02: every line above 5 % of the tallest lies within the estimate of a line of the split result.
+        var system = SpinSystem.Create(new FieldMHz(400), [new("X", shiftX, countX), new("A", shiftA, countA)], [new("X", "A", jHz)]);
+        var plan = ClusterPartition.Plan(system, 0.05);
+        Assert.Equal(2, plan.Clusters.Count);
+        var single = Assert.Single(plan.Cut);
+        Assert.Equal(Math.Abs(jHz) / (Math.Abs(shiftX - shiftA) * 400), single.Ratio, 12);
+        var estimate = plan.LargestDisplacementEstimate().Hz;
+        Assert.Equal(jHz * jHz * CutCoupling.LadderSquareFactor(countX) * CutCoupling.LadderSquareFactor(countA) / (2 * Math.Abs(shiftX - shiftA) * 400), estimate, 12);
+
+        var exact = SpectrumEngine.Compute(system, Exact).Lines;
+        var split = SpectrumEngine.Compute(system, Split(0.05)).Lines;
+        var tallest = exact.Max(l => l.Intensity);
+        var worst = exact.Where(l => l.Intensity > 0.05 * tallest).Max(l => split.Min(s => Math.Abs(s.FrequencyHz - l.FrequencyHz)));
+        Assert.True(worst <= estimate, $"a strong line moved {worst:G4} Hz, more than the estimate {estimate:G4} Hz");
+        Assert.True(worst >= estimate / 8, $"the estimate {estimate:G4} Hz is far above the largest move {worst:G4} Hz");
+    }
+
+    [Fact]
+    public void LadderSquareFactorIsTheLargestSquaredLadderElementOfTheTotalSpins()
+    {
+        // Exact invariant: max over F and m of F(F+1) - m(m+1) for n equivalent spin-1/2 nuclei, F = n/2 and m = -1/2 or 0.
+        for (var n = 1; n <= 12; n++)
+        {
+            var best = CompositeSpins.Decompose(n).Max(s => Enumerable.Range(0, s.Dimension - 1)
+                .Select(k => Math.Pow(CompositeSpins.LadderElement(s.F, -s.F + k, +1), 2)).DefaultIfEmpty(0).Max());
+            Assert.Equal(best, CutCoupling.LadderSquareFactor(n), 9);
+        }
+    }
+
+    [Fact]
+    public void ExactPlanCutsNothing()
+    {
+        var plan = ClusterPartition.Whole(ElevenSpins());
+        Assert.Empty(plan.Cut);
+        Assert.Null(plan.StrongestCut);
+        Assert.Equal((0.0, -1), plan.LargestDisplacementEstimate());
+    }
+
     [Fact]
     public void UnobservedStronglyCoupledGroupIsKeptWithItsProtons()
     {
