@@ -17,6 +17,10 @@ namespace SpinSim.Core.Engine;
 /// keeps their centroid, changes a trace of linewidth W only by about (width / W)^2 / 2 of their share: 2e-4 at the
 /// default 0.01 Hz and 0.5 Hz lines.
 /// </param>
+/// <param name="PoolWeakLines">
+/// Pool the lines below the floor (the default, which keeps the sum rule exact), or drop them: a fit that fades weak
+/// lines out itself has no use for them and is faster without.
+/// </param>
 /// <param name="MergeToleranceHz">Lines closer than this are merged into one (degenerate transitions).</param>
 /// <param name="MemoryBudgetBytes">Systems whose estimated working memory exceeds this are refused.</param>
 /// <param name="Splitting">Exact (one cluster), Split (weak-coupling clusters) or Auto (exact while cheap).</param>
@@ -30,7 +34,8 @@ public sealed record EngineOptions(
     ClusterSplitting Splitting = ClusterSplitting.Auto,
     double WeakCouplingRatio = 0.05,
     int AutoExactLargestBlock = 256,
-    double PoolWidthHz = 0.01)
+    double PoolWidthHz = 0.01,
+    bool PoolWeakLines = true)
 {
     public static EngineOptions Default { get; } = new();
 

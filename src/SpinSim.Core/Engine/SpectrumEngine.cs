@@ -55,7 +55,8 @@ public static class SpectrumEngine
         var raw = new RawLines[work.Count][];
         var pools = new LinePools(system.Nuclei.Count, options.PoolWidthHz);
         var sizes = new IReadOnlyList<int>[work.Count];
-        var solvers = work.Select(w => new SubspectrumSolver(w.Combination.Particles, w.Combination.CouplingsHz, system.Nuclei.Count, backend)).ToArray();
+        var solvers = work.Select(w => new SubspectrumSolver(w.Combination.Particles, w.Combination.CouplingsHz, system.Nuclei.Count, backend)
+            { PoolWeakLines = options.PoolWeakLines }).ToArray();
         // Many small subspectra are cheaper on one thread than handed between threads.
         var parallel = new ParallelOptions
         {

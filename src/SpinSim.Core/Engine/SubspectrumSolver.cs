@@ -223,6 +223,9 @@ internal sealed class SubspectrumSolver
     /// <summary>Size of the product space of the particles.</summary>
     public int StateCount => _totalStates;
 
+    /// <summary>Whether lines below the floor are pooled (the default) or dropped; see <see cref="EngineOptions.PoolWeakLines"/>.</summary>
+    public bool PoolWeakLines { get; init; } = true;
+
     /// <summary>The largest block of H as <see cref="IDenseBackend.SymmetricEigen"/> receives it (for the dense-rate benchmarks).</summary>
     internal (int Size, double[] Matrix) LargestBlock()
     {
@@ -416,7 +419,7 @@ internal sealed class SubspectrumSolver
 
         var observedEntries = observed.Select(p => _particles[p].Entry).ToArray();
         var lines = new RawLines(observedEntries, izUpper, izLower);
-        var zero = ZeroIntensityPerWeight * weight;
+        var zero = PoolWeakLines ? ZeroIntensityPerWeight * weight : double.PositiveInfinity;
         var count = observed.Length;
         for (var a = 0; a < nu; a++)
             for (var b = 0; b < nl; b++)

@@ -45,7 +45,7 @@ public static class SpectrumFitter
         // (SpectralModel.NegligibleIntensity, relative to one nucleus); a higher floor would put steps into the
         // finite-difference derivatives as lines cross it.
         var floor = SpectralModel.NegligibleIntensity / 10 / Math.Max(1, problem.System.ObservedNucleusCount);
-        var engine = (options.Engine ?? EngineOptions.Default) with { RelativeIntensityFloor = floor };
+        var engine = (options.Engine ?? EngineOptions.Default) with { RelativeIntensityFloor = floor, PoolWeakLines = false };
         var prepared = problem.Data.Select(PreparedData.From).ToArray();
         var layout = new ParameterLayout(StartScales(problem, prepared, engine), problem.Ties);
         if (layout.FreeCount == 0) throw new ArgumentException("nothing to fit: every parameter is fixed");
