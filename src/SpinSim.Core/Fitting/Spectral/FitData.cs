@@ -34,10 +34,27 @@ internal sealed class PreparedData
     public readonly double BaselineHalfSpanPpm;
     public readonly int[] TraceIndex;
 
+    /// <summary>The baseline polynomial's variable at each point: (ppm - centre) / half-span, from -1 to 1.</summary>
+    public readonly double[] BaselineX;
+
     private PreparedData(double[] hz, double[] ppm, double[] y, double observeMHz, double normalisation, double centre, double halfSpan, int[] traceIndex)
     {
         Hz = hz; Ppm = ppm; Y = y; ObserveMHz = observeMHz; Normalisation = normalisation;
         BaselineCentrePpm = centre; BaselineHalfSpanPpm = halfSpan; TraceIndex = traceIndex;
+        BaselineX = ppm.Select(p => (p - centre) / halfSpan).ToArray();
+    }
+
+    /// <summary>x^order at every point (the baseline's derivative with respect to its coefficient of that order).</summary>
+    public double[] BaselinePower(int order)
+    {
+        var result = new double[Count];
+        for (var i = 0; i < result.Length; i++)
+        {
+            var v = 1.0;
+            for (var k = 0; k < order; k++) v *= BaselineX[i];
+            result[i] = v;
+        }
+        return result;
     }
 
     public int Count => Hz.Length;

@@ -96,9 +96,8 @@ internal sealed class SpectralModel : ILeastSquaresModel
                 for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = 0;
                 foreach (var m in members)
                 {
-                    var data = _data[m.Dataset];
-                    for (var i = 0; i < data.Count; i++)
-                        jacobian[_offsets[m.Dataset] + i, f] += Math.Pow((data.Ppm[i] - data.BaselineCentrePpm) / data.BaselineHalfSpanPpm, m.Index);
+                    var power = _data[m.Dataset].BaselinePower(m.Index);
+                    for (var i = 0; i < power.Length; i++) jacobian[_offsets[m.Dataset] + i, f] += power[i];
                 }
                 continue;
             }
@@ -131,15 +130,27 @@ internal sealed class SpectralModel : ILeastSquaresModel
 
     private double[] Baseline(double[] full, int d)
     {
-        var data = _data[d];
-        var b = new double[data.Count];
-        for (var k = 0; k < full.Length; k++)
-        {
-            var p = _layout.Parameters[k];
-            if (p.Kind != ParameterKind.Baseline || p.Dataset != d) continue;
-            for (var i = 0; i < data.Count; i++) b[i] += full[k] * Math.Pow((data.Ppm[i] - data.BaselineCentrePpm) / data.BaselineHalfSpanPpm, p.Index);
-        }
+        var b = new double[_data[d].Count];
+        var terms = Enumerable.Range(0, full.Length)
+            .Where(k => _layout.Parameters[k].Kind == ParameterKind.Baseline && _layout.Parameters[k].Dataset == d)
+            .Select(k => (_layout.Parameters[k].Index, full[k])).ToList();
+        AddBaseline(_data[d], terms, b);
         return b;
+    }
+
+    /// <summary>Adds the polynomial sum of value x^order to <paramref name="y"/>, by Horner's rule (no Math.Pow per point).</summary>
+    private static void AddBaseline(PreparedData data, List<(int Order, double Value)> terms, Span<double> y)
+    {
+        if (terms.Count == 0) return;
+        var coefficients = new double[terms.Max(t => t.Order) + 1];
+        foreach (var (order, value) in terms) coefficients[order] += value;
+        var x = data.BaselineX;
+        for (var i = 0; i < y.Length; i++)
+        {
+            var v = 0.0;
+            for (var k = coefficients.Length - 1; k >= 0; k--) v = v * x[i] + coefficients[k];
+            y[i] += v;
+        }
     }
 
     /// <summary>The model of dataset <paramref name="d"/> at the fitted points, in normalised units.</summary>
@@ -196,9 +207,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
             var cutoff = Math.Max(MinimumCutoffWidths, CutoffWidths * Math.Sqrt(Math.Min(1, intensity / singleNucleus)));
             AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + offsetHz, intensity * areaScale, width, cutoff, cos, sin);
         }
-        foreach (var (order, value) in baseline)
-            for (var i = 0; i < y.Length; i++)
-                y[i] += value * Math.Pow((data.Ppm[i] - data.BaselineCentrePpm) / data.BaselineHalfSpanPpm, order);
+        AddBaseline(data, baseline, y);
         return true;
     }
 
@@ -215,11 +224,24 @@ internal sealed class SpectralModel : ILeastSquaresModel
             var half = lorentzian / 2;
             var h2 = half * half;
             var a = area / Math.PI;
-            for (var i = first; i < last; i++)
+            var absorption = half * cos;
+            // The core of the window needs no taper; only the two outer bands do.
+            var coreFirst = LowerBound(hz, centreHz - taper);
+            var coreLast = LowerBound(hz, centreHz + taper);
+            for (var i = coreFirst; i < coreLast; i++)
             {
                 var dx = hz[i] - centreHz;
-                var inv = a / (dx * dx + h2);
-                y[i] += inv * (half * cos - dx * sin) * Taper(Math.Abs(dx), taper, reach);
+                y[i] += a / (dx * dx + h2) * (absorption - dx * sin);
+            }
+            for (var i = first; i < coreFirst; i++)
+            {
+                var dx = hz[i] - centreHz;
+                y[i] += a / (dx * dx + h2) * (absorption - dx * sin) * Taper(-dx, taper, reach);
+            }
+            for (var i = coreLast; i < last; i++)
+            {
+                var dx = hz[i] - centreHz;
+                y[i] += a / (dx * dx + h2) * (absorption - dx * sin) * Taper(dx, taper, reach);
             }
             return;
         }
