@@ -82,13 +82,7 @@ public static class FitCommand
             }
             var width = parse.GetValue(linewidth) ?? document.DefaultWidth?.Value ?? SimulateCommand.FallbackLinewidthHz;
             if (!(width > 0 && double.IsFinite(width))) throw new UserInputException($"--linewidth must be above 0 Hz, got {width}");
-            var lineshape = parse.GetValue(shape) switch
-            {
-                "gaussian" => Lineshape.Gaussian,
-                "voigt" => Lineshape.Voigt(),
-                "lorentzian" => Lineshape.Lorentzian,
-                _ => settings.Shape ?? Lineshape.Lorentzian,
-            };
+            var lineshape = parse.GetValue(shape) is { } named ? TraceChoice.ShapeFrom(named, 0.5) : settings.Shape ?? Lineshape.Lorentzian;
 
             var datasets = new List<FitDataset>();
             for (var d = 0; d < traces.Count; d++)
