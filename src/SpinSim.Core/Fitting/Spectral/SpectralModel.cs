@@ -9,7 +9,7 @@ namespace SpinSim.Core.Fitting.Spectral;
 /// The least-squares model of a spectrum fit: free values -> spin system -> lines at each trace's field -> trace on the
 /// fitted points, with scale, polynomial baseline, frequency offset and zero-order phase per trace. Residual = model - data.
 /// Line lists are cached by their shift and coupling values, so derivatives in the other parameters cost no
-/// diagonalisation. One instance per thread.
+/// diagonalisation. Safe for the parallel Jacobian columns; one instance per fit start.
 /// </summary>
 internal sealed class SpectralModel : ILeastSquaresModel
 {
@@ -43,7 +43,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
     private readonly Lineshape _shape;
     private readonly EngineOptions _engine;
     private readonly double _broadeningHz;
-    private readonly Dictionary<string, LineList>[] _cache;
+    private readonly System.Collections.Concurrent.ConcurrentDictionary<string, LineList>[] _cache;
     private readonly int[] _offsets;
 
     public SpectralModel(SpinSystem system, ParameterLayout layout, IReadOnlyList<PreparedData> data, Lineshape shape, EngineOptions engine, double broadeningHz)
@@ -54,7 +54,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
         _shape = shape;
         _engine = engine;
         _broadeningHz = broadeningHz;
-        _cache = data.Select(_ => new Dictionary<string, LineList>()).ToArray();
+        _cache = data.Select(_ => new System.Collections.Concurrent.ConcurrentDictionary<string, LineList>()).ToArray();
         _offsets = new int[data.Count + 1];
         for (var d = 0; d < data.Count; d++) _offsets[d + 1] = _offsets[d] + data[d].Count;
     }
@@ -86,8 +86,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
     {
         var x = parameters.ToArray();
         var full = _layout.Expand(x);
-        var plus = new double[ResidualCount];
-        var minus = new double[ResidualCount];
+        var differenced = new List<int>();
         for (var f = 0; f < x.Length; f++)
         {
             var members = _layout.MembersOf(f).Select(i => _layout.Parameters[i]).ToArray();
@@ -116,15 +115,23 @@ internal sealed class SpectralModel : ILeastSquaresModel
                 }
                 continue;
             }
-            var h = Steps.Length == x.Length ? Steps[f] : 1e-6 * Math.Max(1, Math.Abs(x[f]));
-            var keep = x[f];
-            x[f] = keep + h;
-            Residuals(x, plus);
-            x[f] = keep - h;
-            Residuals(x, minus);
-            x[f] = keep;
-            for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = (plus[r] - minus[r]) / (2 * h);
+            differenced.Add(f);
         }
+
+        // The differenced columns are independent: spread them over the cores (each with its own buffers).
+        Parallel.ForEach(differenced, column =>
+        {
+            var at = (double[])x.Clone();
+            var plus = new double[ResidualCount];
+            var minus = new double[ResidualCount];
+            var h = Steps.Length == at.Length ? Steps[column] : 1e-6 * Math.Max(1, Math.Abs(at[column]));
+            var keep = at[column];
+            at[column] = keep + h;
+            Residuals(at, plus);
+            at[column] = keep - h;
+            Residuals(at, minus);
+            for (var r = 0; r < ResidualCount; r++) jacobian[r, column] = (plus[r] - minus[r]) / (2 * h);
+        });
         return true;
     }
 
