@@ -54,17 +54,6 @@ public sealed record SpinSystem
 
     public int IndexOf(string id) => _index.TryGetValue(id, out var i) ? i : -1;
 
-    /// <summary>Coupling between entries <paramref name="a"/> and <paramref name="b"/> in Hz, 0 when none is given.</summary>
-    public double CouplingHz(int a, int b)
-    {
-        foreach (var c in Couplings)
-        {
-            var (i, j) = (IndexOf(c.A), IndexOf(c.B));
-            if ((i == a && j == b) || (i == b && j == a)) return c.J.Value;
-        }
-        return 0.0;
-    }
-
     /// <summary>Symmetric matrix of couplings in Hz between entries (zero diagonal).</summary>
     public double[,] CouplingMatrixHz()
     {

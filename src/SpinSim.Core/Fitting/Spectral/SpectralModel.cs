@@ -45,6 +45,8 @@ internal sealed class SpectralModel : ILeastSquaresModel
     private readonly double _broadeningHz;
     private readonly System.Collections.Concurrent.ConcurrentDictionary<string, LineList>[] _cache;
     private readonly int[] _offsets;
+    private readonly int[] _spinParameters;
+    private readonly double _singleNucleus;
 
     public SpectralModel(SpinSystem system, ParameterLayout layout, IReadOnlyList<PreparedData> data, Lineshape shape, EngineOptions engine, double broadeningHz)
     {
@@ -55,6 +57,10 @@ internal sealed class SpectralModel : ILeastSquaresModel
         _engine = engine;
         _broadeningHz = broadeningHz;
         _cache = data.Select(_ => new System.Collections.Concurrent.ConcurrentDictionary<string, LineList>()).ToArray();
+        _spinParameters = Enumerable.Range(0, layout.Parameters.Count)
+            .Where(i => layout.Parameters[i].Kind is ParameterKind.ShiftPpm or ParameterKind.JHz).ToArray();
+        // Intensity of one uncoupled nucleus, 2^(N-1): the unit of line areas and of the negligible-line threshold.
+        _singleNucleus = Math.Pow(2, system.Nuclei.Sum(n => n.Count) - 1);
         _offsets = new int[data.Count + 1];
         for (var d = 0; d < data.Count; d++) _offsets[d + 1] = _offsets[d] + data[d].Count;
     }
@@ -198,8 +204,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
             for (var e = 0; e < perEntryWidth.Length; e++)
                 if (perEntryWidth[e] == 0) perEntryWidth[e] = double.IsNaN(globalWidth) ? 1.0 : globalWidth;
 
-        var singleNucleus = Math.Pow(2, _system.Nuclei.Sum(n => n.Count) - 1);
-        var areaScale = scale / singleNucleus / data.Normalisation;
+        var areaScale = scale / _singleNucleus / data.Normalisation;
         var cos = Math.Cos(phaseDeg * Math.PI / 180);
         var sin = Math.Sin(phaseDeg * Math.PI / 180);
         y.Clear();
@@ -208,10 +213,10 @@ internal sealed class SpectralModel : ILeastSquaresModel
             var width = hasPerEntry ? lines.WeightedByOrigin(l, perEntryWidth) : globalWidth;
             if (!(width > 0)) return false;
             var intensity = lines.Lines[l].Intensity;
-            var relative = intensity / singleNucleus;
+            var relative = intensity / _singleNucleus;
             if (relative < NegligibleIntensity) continue;
             if (relative < 10 * NegligibleIntensity) intensity *= 1 - SmoothStep((10 * NegligibleIntensity - relative) / (9 * NegligibleIntensity));
-            var cutoff = Math.Max(MinimumCutoffWidths, CutoffWidths * Math.Sqrt(Math.Min(1, intensity / singleNucleus)));
+            var cutoff = Math.Max(MinimumCutoffWidths, CutoffWidths * Math.Sqrt(Math.Min(1, intensity / _singleNucleus)));
             AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + offsetHz, intensity * areaScale, width, cutoff, cos, sin);
         }
         AddBaseline(data, baseline, y);
@@ -281,9 +286,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
 
     private LineList LinesFor(double[] full, int d)
     {
-        var key = string.Join(",", Enumerable.Range(0, full.Length)
-            .Where(i => _layout.Parameters[i].Kind is ParameterKind.ShiftPpm or ParameterKind.JHz)
-            .Select(i => BitConverter.DoubleToInt64Bits(full[i])));
+        var key = string.Join(",", _spinParameters.Select(i => BitConverter.DoubleToInt64Bits(full[i])));
         var cache = _cache[d];
         if (cache.TryGetValue(key, out var cached)) return cached;
         var system = _layout.ApplySpin(_system, full).WithField(new Units.FieldMHz(_data[d].ObserveMHz / _system.Observed.FrequencyRatioPercent * 100));

@@ -84,8 +84,6 @@ public static class SpectrumFitter
                 var stage = stages[k];
                 last = RunStage(problem, layout, stageData[k], engine, stage, x, lower, upper, options, s, k, stages.Count);
                 x = last.Parameters;
-                if (Environment.GetEnvironmentVariable("SPINSIM_FIT_DEBUG") == "1")
-                    Console.Error.WriteLine($"start {s} stage {k} W {stage.BroadeningHz:0.0} stride {stage.Stride} hold {stage.HoldCouplings}: cost {last.ResidualSumOfSquares:E3} it {last.Iterations} x {string.Join(" ", x.Select(v => v.ToString("0.####")))}");
             }
             outcomes[s] = (x, last!);
         });
@@ -96,13 +94,9 @@ public static class SpectrumFitter
         // Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'): keep the user's labels
         // by taking, among the starts at the best cost, the one whose shifts moved least from the given start.
         var best = atBest.OrderBy(o => ShiftDistance(layout, o.Free, starts[0])).First();
-        if (Environment.GetEnvironmentVariable("SPINSIM_FIT_DEBUG") == "1")
-            foreach (var o in outcomes) Console.Error.WriteLine($"start: cost {o.Result.ResidualSumOfSquares:E4} it {o.Result.Iterations} {o.Result.Reason}");
         var polish = options.Cancel.IsCancellationRequested
             ? best.Result
             : RunStage(problem, layout, prepared, engine, new Stage(0, 1, false), best.Free, lower, upper, options, -1, stages.Count, stages.Count + 1);
-
-        var finalFree = polish.ResidualSumOfSquares <= best.Result.ResidualSumOfSquares || !polish.Converged ? polish.Parameters : best.Free;
         var finalModel = new SpectralModel(problem.System, layout, prepared, problem.Shape, engine, 0);
         return SpectrumFitResult.Build(problem, layout, finalModel, polish.Parameters, polish, starts.Count, reached,
             options.Cancel.IsCancellationRequested);
