@@ -36,13 +36,7 @@ public static class SpinSystemJson
 
     public static SpinSystemDocument Read(string path)
     {
-        string text;
-        try { text = File.ReadAllText(path); }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-        {
-            throw new SpinSystemFileException(path, null, $"cannot read the file ({e.Message})", "Check the path and the file's permissions");
-        }
-        return Parse(text, path);
+        return Parse(SpinSystemFiles.ReadText(path), path);
     }
 
     public static SpinSystemDocument Parse(string text, string path)

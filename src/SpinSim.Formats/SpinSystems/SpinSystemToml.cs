@@ -28,26 +28,14 @@ public static class SpinSystemToml
 
     public static SpinSystemDocument Read(string path)
     {
-        string text;
-        try { text = File.ReadAllText(path); }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-        {
-            throw new SpinSystemFileException(path, null, $"cannot read the file ({e.Message})", "Check the path and the file's permissions");
-        }
-        return Parse(text, path);
+        return Parse(SpinSystemFiles.ReadText(path), path);
     }
 
     public static SpinSystemDocument Parse(string text, string path)
     {
         if (string.IsNullOrWhiteSpace(text))
             throw new SpinSystemFileException(path, null, "the file is empty", "Write at least field_mhz and one [[nucleus]] table; see spin-systems/ for examples");
-        var doc = SyntaxParser.Parse(text, path, true);
-        if (doc.HasErrors)
-        {
-            var first = doc.Diagnostics.First(d => d.Kind == DiagnosticMessageKind.Error);
-            throw new SpinSystemFileException(path, first.Span.Start.Line + 1, $"not valid TOML: {first.Message}",
-                "Fix the syntax at that line (strings in double quotes, one key = value per line, tables as [[nucleus]])");
-        }
+        var doc = ParseSyntax(text, path);
 
         var fieldLine = 0;
         double? fieldMHz = null;
@@ -112,18 +100,7 @@ public static class SpinSystemToml
     /// <summary>Reads a fit file: a TOML file holding only a [fit] table (and [fit.bounds]), the same keys as in a system file.</summary>
     public static FitSection ReadFitFile(string path)
     {
-        string text;
-        try { text = File.ReadAllText(path); }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-        {
-            throw new SpinSystemFileException(path, null, $"cannot read the fit file ({e.Message})", "Check the path and the file's permissions");
-        }
-        var doc = SyntaxParser.Parse(text, path, true);
-        if (doc.HasErrors)
-        {
-            var first = doc.Diagnostics.First(d => d.Kind == DiagnosticMessageKind.Error);
-            throw new SpinSystemFileException(path, first.Span.Start.Line + 1, $"not valid TOML: {first.Message}", "Fix the syntax at that line");
-        }
+        var doc = ParseSyntax(SpinSystemFiles.ReadText(path, "the fit file"), path);
         if (doc.KeyValues.ChildrenCount > 0)
             throw new SpinSystemFileException(path, Line(doc.KeyValues.First()), "a fit file holds only a [fit] table", "Put the settings under a [fit] line");
         var entries = new List<FitEntry>();
@@ -135,6 +112,15 @@ public static class SpinSystemToml
             foreach (var kv in table.Items) entries.Add(new FitEntry(name, KeyOf(kv.Key!), Value(path, kv.Value!, Line(kv)), Line(kv)));
         }
         return new FitSection(path, entries);
+    }
+
+    private static DocumentSyntax ParseSyntax(string text, string path)
+    {
+        var doc = SyntaxParser.Parse(text, path, true);
+        if (!doc.HasErrors) return doc;
+        var first = doc.Diagnostics.First(d => d.Kind == DiagnosticMessageKind.Error);
+        throw new SpinSystemFileException(path, first.Span.Start.Line + 1, $"not valid TOML: {first.Message}",
+            "Fix the syntax at that line (strings in double quotes, one key = value per line, tables as [[nucleus]] or [fit])");
     }
 
     private static Nucleus ReadNucleus(string path, TableSyntaxBase table, int tableLine)
