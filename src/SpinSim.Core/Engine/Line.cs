@@ -45,6 +45,9 @@ public sealed class LineList
     /// <summary>How many of the lines are pools of lines below the engine's floor (see <see cref="EngineOptions.RelativeIntensityFloor"/>).</summary>
     public int PooledLines { get; init; }
 
+    /// <summary>Derivatives of the lines by shifts and couplings, when they were asked for (<see cref="SpectrumEngine.ComputeWithDerivatives"/>).</summary>
+    public LineDerivatives? Derivatives { get; init; }
+
     public int LargestBlock { get; }
     public int Blocks { get; }
     public string Backend { get; }

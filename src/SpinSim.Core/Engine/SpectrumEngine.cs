@@ -25,7 +25,29 @@ public static class SpectrumEngine
             : ClusterPartition.Plan(system, options.WeakCouplingRatio),
     };
 
-    public static LineList Compute(SpinSystem system, ClusterPlan plan, EngineOptions options, CancellationToken cancel = default)
+    /// <summary>
+    /// The lines of <paramref name="system"/> with their derivatives by the given shifts and couplings
+    /// (<see cref="LineList.Derivatives"/>), from one diagonalisation. Needs the whole system diagonalised as one (a split
+    /// plan moves lines by first-order spectator shifts, which this does not differentiate) and weak-line pooling off.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The options split the system or pool weak lines.</exception>
+    public static LineList ComputeWithDerivatives(SpinSystem system, EngineOptions options, IReadOnlyList<SpinParameter> parameters,
+        CancellationToken cancel = default)
+    {
+        var plan = PlanFor(system, options);
+        if (!plan.IsExact) throw new InvalidOperationException("line derivatives need the whole system diagonalised as one; this one is split");
+        if (options.PoolWeakLines) throw new InvalidOperationException("line derivatives need weak-line pooling off");
+        foreach (var p in parameters)
+            if (p.EntryA < 0 || p.EntryA >= system.Nuclei.Count || p.EntryB >= system.Nuclei.Count || p.EntryA == p.EntryB)
+                throw new ArgumentException($"no such shift or coupling: entries {p.EntryA}, {p.EntryB}", nameof(parameters));
+        return Compute(system, plan, options, cancel, parameters);
+    }
+
+    public static LineList Compute(SpinSystem system, ClusterPlan plan, EngineOptions options, CancellationToken cancel = default) =>
+        Compute(system, plan, options, cancel, null);
+
+    private static LineList Compute(SpinSystem system, ClusterPlan plan, EngineOptions options, CancellationToken cancel,
+        IReadOnlyList<SpinParameter>? parameters)
     {
         if (!(options.PoolWidthHz > 0) || !double.IsFinite(options.PoolWidthHz))
             throw new ArgumentOutOfRangeException(nameof(options), options.PoolWidthHz, "the pooling width must be positive and finite");
@@ -68,12 +90,15 @@ public static class SpectrumEngine
             var (_, weight) = work[k];
             var solver = solvers[k];
             sizes[k] = solver.BlockSizes();
-            raw[k] = solver.Solve(weight, floor, pools, options.PoolWidthHz, cancel);
+            raw[k] = solver.Solve(weight, floor, pools, options.PoolWidthHz, cancel,
+                parameters is null ? null : GeneratorsFor(work[k].Combination.Particles, parameters));
         });
         var largest = sizes.SelectMany(s => s).DefaultIfEmpty(0).Max();
         var blocks = sizes.Sum(s => s.Count);
 
-        var (lines, origin) = Merge(raw.SelectMany(r => r).ToList(), pools, system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
+        var chunks = raw.SelectMany(r => r).ToList();
+        var (lines, origin) = Merge(chunks, pools, system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
+        var derivatives = parameters is null ? null : MergeDerivatives(chunks, parameters, options.MergeToleranceHz);
         var pooled = pools.Count;
         var notes = plan.IsExact ? new List<string> { "exact: the whole system was diagonalised as one" } : new List<string>
         {
@@ -83,7 +108,75 @@ public static class SpectrumEngine
         if (pooled > 0)
             notes.Add($"{pools.LineCount} lines below {options.RelativeIntensityFloor:G3} of the total intensity were pooled into {pooled} bins " +
                       $"of {options.PoolWidthHz:G3} Hz, listed at their intensity-weighted mean frequency (a line alone in its bin keeps its own)");
-        return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, notes) { PooledLines = pooled };
+        return new LineList(lines, origin, system.Nuclei.Count, observeMHz, expectedTotal, largest, blocks, backend.Name, notes)
+            { PooledLines = pooled, Derivatives = derivatives };
+    }
+
+    /// <summary>dH/dθ of each parameter in one subspectrum's particles (each entry is at most one particle there).</summary>
+    private static Generator[] GeneratorsFor(Particle[] particles, IReadOnlyList<SpinParameter> parameters)
+    {
+        var of = new Dictionary<int, int>();
+        for (var p = 0; p < particles.Length; p++) of[particles[p].Entry] = p;
+        return parameters.Select(s =>
+        {
+            if (!of.TryGetValue(s.EntryA, out var p)) return new Generator(-1, -1);
+            if (s.IsShift) return new Generator(p, -1);
+            return of.TryGetValue(s.EntryB, out var q) ? new Generator(p, q) : new Generator(-1, -1);
+        }).ToArray();
+    }
+
+    /// <summary>
+    /// The derivatives of the merged lines, in the order <see cref="MergeExact"/> lists them: for a run of merged lines
+    /// I = sum I_k and I ν = sum I_k ν_k, so dI = sum dI_k and I dν = sum (dI_k ν_k + I_k dν_k) - ν dI.
+    /// </summary>
+    private static LineDerivatives MergeDerivatives(IReadOnlyList<RawLines> chunks, IReadOnlyList<SpinParameter> parameters, double toleranceHz)
+    {
+        var count = chunks.Sum(c => c.Count);
+        var g = parameters.Count;
+        var frequency = new double[count];
+        var chunkOf = new int[count];
+        var indexIn = new int[count];
+        var at = 0;
+        for (var c = 0; c < chunks.Count; c++)
+        {
+            chunks[c].FrequencyHz.CopyTo(frequency, at);
+            for (var k = 0; k < chunks[c].Count; k++) { chunkOf[at + k] = c; indexIn[at + k] = k; }
+            at += chunks[c].Count;
+        }
+        var order = Enumerable.Range(0, count).ToArray();
+        Array.Sort(frequency, order);
+        var dIntensity = new List<double>();
+        var dMoment = new List<double>();
+        var sumDI = new double[g];
+        var sumDM = new double[g];
+        var i = 0;
+        while (i < count)
+        {
+            Array.Clear(sumDI);
+            Array.Clear(sumDM);
+            double sumI = 0, sumF = 0;
+            do
+            {
+                var chunk = chunks[chunkOf[order[i]]];
+                var k = indexIn[order[i]];
+                sumI += chunk.Intensity[k];
+                sumF += chunk.Intensity[k] * frequency[i];
+                for (var p = 0; p < g; p++)
+                {
+                    var di = chunk.DIntensity[k * g + p];
+                    sumDI[p] += di;
+                    sumDM[p] += di * frequency[i] + chunk.DMoment[k * g + p];
+                }
+                i++;
+            } while (i < count && frequency[i] - frequency[i - 1] <= toleranceHz);
+            var f = sumF / sumI;
+            for (var p = 0; p < g; p++)
+            {
+                dIntensity.Add(sumDI[p]);
+                dMoment.Add(sumDM[p] - f * sumDI[p]);
+            }
+        }
+        return new LineDerivatives(parameters, dIntensity.ToArray(), dMoment.ToArray());
     }
 
     /// <summary>Tr(F+ F-) = N 2^(N-1) for N observed spin-1/2 nuclei, times 2^M for M unobserved ones.</summary>

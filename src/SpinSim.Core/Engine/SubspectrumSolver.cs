@@ -2,6 +2,7 @@ using System.Collections.Concurrent;
 using System.Runtime.InteropServices;
 using SpinSim.Core.LinearAlgebra;
 
+
 namespace SpinSim.Core.Engine;
 
 /// <summary>A spin-F particle of one diagonalisation: a single nucleus (F = 1/2) or one total spin of an equivalent set.</summary>
@@ -10,14 +11,26 @@ namespace SpinSim.Core.Engine;
 internal readonly record struct Particle(int Entry, int TwiceF, int IsotopeGroup, double FrequencyHz, bool Observed);
 
 /// <summary>
+/// dH/dθ of one spin parameter among a solver's particles: Fz_P when Q is -1; F_P·F_Q between homonuclear particles
+/// and Fz_P Fz_Q between heteronuclear ones (the secular coupling); nothing when P is -1 (the parameter does not act
+/// on this subspectrum, as a total spin of 0 carries no shift).
+/// </summary>
+internal readonly record struct Generator(int P, int Q);
+
+/// <summary>
 /// Lines of one block pair before merging, in flat arrays. The origin of line k is not stored but derived on demand
 /// from the expected Fz of its two eigenstates (<see cref="AddOrigin"/>), which keeps many lines cheap.
 /// </summary>
-internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[] izLower)
+internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[] izLower, int derivativeCount = 0)
 {
     public readonly List<double> FrequencyHz = [];
     public readonly List<double> Intensity = [];
     public readonly List<long> States = []; // upper << 32 | lower
+
+    /// <summary>Parameters differentiated by; per line dI/dθ and I·dν/dθ, as [line * DerivativeCount + parameter].</summary>
+    public readonly int DerivativeCount = derivativeCount;
+    public readonly List<double> DIntensity = [];
+    public readonly List<double> DMoment = [];
 
     public int Count => FrequencyHz.Count;
 
@@ -245,8 +258,12 @@ internal sealed class SubspectrumSolver
     internal const double ZeroIntensityPerWeight = 1e-20;
 
     /// <summary>The lines of every observed block pair, and the weak lines below <paramref name="intensityFloor"/> added to <paramref name="pools"/>.</summary>
-    public RawLines[] Solve(double weight, double intensityFloor, LinePools pools, double poolWidthHz, CancellationToken cancel)
+    /// <param name="generators">When given, every kept line also gets its derivatives by these parameters (pooling must be off).</param>
+    public RawLines[] Solve(double weight, double intensityFloor, LinePools pools, double poolWidthHz, CancellationToken cancel,
+        Generator[]? generators = null)
     {
+        if (generators is { Length: > 0 } && PoolWeakLines)
+            throw new InvalidOperationException("line derivatives need weak-line pooling off: a pool has no derivatives");
         var (blocks, keyOf, lowerKeyStep) = Partition();
         var blockIndexOfKey = new Dictionary<long, int>();
         for (var b = 0; b < blocks.Count; b++) blockIndexOfKey[keyOf[b]] = b;
@@ -291,6 +308,10 @@ internal sealed class SubspectrumSolver
         var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
         var iz = new double[blocks.Count][];
         Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
+        var perturbed = new BlockPerturbation?[blocks.Count];
+        if (generators is { Length: > 0 })
+            Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel,
+                b => perturbed[b] = Perturbation(blocks[b], local, vectors[b], energies[b], generators));
 
         var results = new RawLines[pairs.Count];
         var pairOrder = Enumerable.Range(0, pairs.Count)
@@ -302,7 +323,7 @@ internal sealed class SubspectrumSolver
             var weak = LinePools.ForRange(_entryCount, poolWidthHz, energies[u][0] - energies[l][^1], energies[u][^1] - energies[l][0],
                 (long)energies[u].Length * energies[l].Length);
             results[k] = Transitions(blocks[u], blocks[l], vectors[u], vectors[l], energies[u], energies[l], iz[u], iz[l], local, observed,
-                weight, intensityFloor, weak);
+                weight, intensityFloor, weak, perturbed[u], perturbed[l]);
             lock (pools) pools.MergeFrom(weak);
         });
         return results;
@@ -389,7 +410,7 @@ internal sealed class SubspectrumSolver
 
     private RawLines Transitions(int[] upperCodes, int[] lowerCodes, double[] vUpper, double[] vLower,
         double[] eUpper, double[] eLower, double[] izUpper, double[] izLower, int[] local, int[] observed, double weight, double intensityFloor,
-        LinePools weak)
+        LinePools weak, BlockPerturbation? pu, BlockPerturbation? pl)
     {
         int nu = upperCodes.Length, nl = lowerCodes.Length;
 
@@ -418,19 +439,131 @@ internal sealed class SubspectrumSolver
         _backend.MultiplyTransposedA(nl, nu, nl, vLower, x, t);
 
         var observedEntries = observed.Select(p => _particles[p].Entry).ToArray();
-        var lines = new RawLines(observedEntries, izUpper, izLower);
+        var derivatives = pu is null || pl is null ? 0 : pu.Vt.Length;
+        var lines = new RawLines(observedEntries, izUpper, izLower, derivatives);
         var zero = PoolWeakLines ? ZeroIntensityPerWeight * weight : double.PositiveInfinity;
         var count = observed.Length;
+        // T by rows as well, for the derivative's sum over upper states (a contiguous row of T).
+        double[]? rows = null;
+        if (derivatives > 0)
+        {
+            rows = new double[(long)nl * nu];
+            for (var a = 0; a < nu; a++)
+                for (var b = 0; b < nl; b++) rows[b * (long)nu + a] = t[b + (long)a * nl];
+        }
         for (var a = 0; a < nu; a++)
             for (var b = 0; b < nl; b++)
             {
                 var amplitude = t[b + (long)a * nl];
                 var intensity = weight * amplitude * amplitude;
-                if (intensity > intensityFloor) lines.Add(eUpper[a] - eLower[b], intensity, a, b);
+                if (intensity > intensityFloor)
+                {
+                    lines.Add(eUpper[a] - eLower[b], intensity, a, b);
+                    if (derivatives > 0) AddDerivatives(lines, t, rows!, nu, nl, a, b, amplitude, weight, pu!, pl!);
+                }
                 else if (intensity > zero)
                     weak.Add(eUpper[a] - eLower[b], intensity, observedEntries, izUpper.AsSpan(a * count, count), izLower.AsSpan(b * count, count));
             }
         return lines;
+    }
+
+    /// <summary>
+    /// For each generator V of one block: Vt = U^T V U in the eigenbasis U, and the first-order mixing
+    /// C[m, a] = Vt[m, a] / (E_a - E_m) of eigenvector a with m (zero when the two are degenerate), both column-major;
+    /// and the runs of degenerate eigenvalues (ascending, so degenerate states are neighbours).
+    /// </summary>
+    internal sealed record BlockPerturbation(double[][] Vt, double[][] C, int[] ClusterFirst, int[] ClusterEnd);
+
+    /// <summary>
+    /// Eigenvalues closer than this fraction of the largest |E| of their block are taken as degenerate: roundoff
+    /// separates exactly degenerate ones by about 1e-13 of it, and a pair treated as degenerate although split by dE
+    /// changes the derivative of the spectrum by a relative (dE / linewidth)^2 only.
+    /// </summary>
+    private const double DegenerateFraction = 1e-9;
+
+    private BlockPerturbation Perturbation(int[] codes, int[] local, double[] u, double[] e, Generator[] generators)
+    {
+        var n = codes.Length;
+        var tolerance = DegenerateFraction * Math.Max(1, e.Select(Math.Abs).Max());
+        var first = new int[n];
+        var end = new int[n];
+        for (var a = 0; a < n;)
+        {
+            var b = a + 1;
+            while (b < n && e[b] - e[b - 1] <= tolerance) b++;
+            for (var c = a; c < b; c++) { first[c] = a; end[c] = b; }
+            a = b;
+        }
+        var vt = new double[generators.Length][];
+        var mixing = new double[generators.Length][];
+        for (var g = 0; g < generators.Length; g++)
+        {
+            var w = GeneratorTimes(generators[g], codes, local, u);
+            var v = new double[(long)n * n];
+            if (w is not null)
+            {
+                if ((long)n * n * n <= SmallDense.Limit) SmallDense.MultiplyTransposedA(n, n, n, u, w, v);
+                else _backend.MultiplyTransposedA(n, n, n, u, w, v);
+            }
+            var c = new double[(long)n * n];
+            for (var a = 0; a < n; a++)
+                for (var m = 0; m < n; m++)
+                    if (m < first[a] || m >= end[a]) c[m + (long)a * n] = v[m + (long)a * n] / (e[a] - e[m]);
+            vt[g] = v;
+            mixing[g] = c;
+        }
+        return new BlockPerturbation(vt, mixing, first, end);
+    }
+
+    /// <summary>V U for generator V in the product basis of a block (null when V is zero here).</summary>
+    private double[]? GeneratorTimes(Generator g, int[] codes, int[] local, double[] u)
+    {
+        if (g.P < 0) return null;
+        var n = codes.Length;
+        var w = new double[(long)n * n];
+        var homonuclear = g.Q >= 0 && _particles[g.P].IsotopeGroup == _particles[g.Q].IsotopeGroup;
+        for (var i = 0; i < n; i++)
+        {
+            var code = codes[i];
+            var diagonal = g.Q < 0 ? M(code, g.P) : M(code, g.P) * M(code, g.Q);
+            if (diagonal != 0)
+                for (var a = 0; a < n; a++) w[i + (long)a * n] += diagonal * u[i + (long)a * n];
+            if (!homonuclear) continue;
+            // (F+_x F-_y + F-_x F+_y) / 2 takes state i to the state with x raised and y lowered, for (x, y) both ways.
+            foreach (var (x, y) in new[] { (g.P, g.Q), (g.Q, g.P) })
+            {
+                var fx = _particles[x].TwiceF / 2.0;
+                var fy = _particles[y].TwiceF / 2.0;
+                var (mx, my) = (M(code, x), M(code, y));
+                if (mx >= fx || my <= -fy) continue;
+                var j = local[code + _strides[x] - _strides[y]];
+                var element = 0.5 * CompositeSpins.LadderElement(fx, mx, +1) * CompositeSpins.LadderElement(fy, my, -1);
+                for (var a = 0; a < n; a++) w[j + (long)a * n] += element * u[i + (long)a * n];
+            }
+        }
+        return w;
+    }
+
+    /// <summary>
+    /// Derivatives of line (a, b) with amplitude T_ba: dT_ba = sum_m T_bm C_u[m, a] + sum_n C_l[n, b] T_na, so
+    /// dI = 2 w T_ba dT_ba; and I dν = w T_ba (sum over a' degenerate with a of Vt_u[a', a] T_ba' - sum over b'
+    /// degenerate with b of Vt_l[b', b] T_b'a), which is w T_ba^2 (dE_a - dE_b) when neither state is degenerate
+    /// (Hellmann-Feynman) and gives the exact sum over coincident lines when they are (degenerate perturbation theory).
+    /// </summary>
+    private static void AddDerivatives(RawLines lines, double[] t, double[] rows, int nu, int nl, int a, int b, double amplitude, double weight,
+        BlockPerturbation pu, BlockPerturbation pl)
+    {
+        var row = rows.AsSpan(b * nu, nu);
+        var column = t.AsSpan(a * nl, nl);
+        for (var g = 0; g < pu.Vt.Length; g++)
+        {
+            var dt = SmallDense.Dot(row, pu.C[g].AsSpan(a * nu, nu)) + SmallDense.Dot(pl.C[g].AsSpan(b * nl, nl), column);
+            double upper = 0, lower = 0;
+            for (var a2 = pu.ClusterFirst[a]; a2 < pu.ClusterEnd[a]; a2++) upper += pu.Vt[g][a2 + (long)a * nu] * row[a2];
+            for (var b2 = pl.ClusterFirst[b]; b2 < pl.ClusterEnd[b]; b2++) lower += pl.Vt[g][b2 + (long)b * nl] * column[b2];
+            lines.DIntensity.Add(2 * weight * amplitude * dt);
+            lines.DMoment.Add(weight * amplitude * (upper - lower));
+        }
     }
 
     /// <summary>&lt;a|Fz_p|a&gt; for every eigenstate a and observed particle p, as [a * observed.Length + k].</summary>

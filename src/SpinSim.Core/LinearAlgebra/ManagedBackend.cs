@@ -32,6 +32,7 @@ public sealed class ManagedBackend : IDenseBackend
 
     public void MultiplyTransposedA(int m, int n, int k, double[] a, double[] b, double[] c)
     {
+        if ((long)m * n * k <= SmallDense.Limit) { SmallDense.MultiplyTransposedA(m, n, k, a, b, c); return; }
         var am = DenseMatrix.OfColumnMajor(k, m, a);
         var bm = DenseMatrix.OfColumnMajor(k, n, b);
         var cm = new DenseMatrix(m, n, c);
