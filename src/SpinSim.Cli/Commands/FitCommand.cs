@@ -169,6 +169,7 @@ public static class FitCommand
         ("points", r.Points.ToString(CultureInfo.InvariantCulture)),
         ("iterations (final run)", r.Iterations.ToString(CultureInfo.InvariantCulture)),
         ("starts reaching the best optimum", $"{r.StartsAtBest} of {r.Starts}"),
+        ("starts that joined another's path", r.StartsJoined.ToString(CultureInfo.InvariantCulture)),
     ];
 
     private static string Format(double v, ParameterKind kind) => kind switch
@@ -183,7 +184,8 @@ public static class FitCommand
         o.WriteLine($"fit of {systemPath} to {string.Join(", ", data)}");
         o.WriteLine($"{(r.Converged ? "converged" : "NOT converged")}: {r.StopReason}");
         o.WriteLine($"rms residual {r.Rms:G4} (fraction of the tallest point), R-factor {r.RFactor:G4}, {r.Points} points, " +
-                    $"{r.Iterations} iterations in the final run, {r.StartsAtBest} of {r.Starts} starts reached the best optimum");
+                    $"{r.Iterations} iterations in the final run, {r.StartsAtBest} of {r.Starts} starts reached the best optimum" +
+                    (r.StartsJoined > 0 ? $" ({r.StartsJoined} joined another start's path on the way)" : ""));
         o.WriteLine();
         o.WriteLine($"  {"parameter",-28} {"value",14} {"std error",12}  unit");
         foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError,12}  {row.Unit}");

@@ -125,7 +125,8 @@ public static class LevenbergMarquardt
                 {
                     double g = 0;
                     for (int i = 0; i < _m; i++) g += _jac[i, j] * _r[i];
-                    if ((_x[j] <= _lower[j] && g > 0) || (_x[j] >= _upper[j] && g < 0)) continue;
+                    // A parameter whose bounds coincide is held; one on a bound whose descent points outwards stays put.
+                    if (_lower[j] == _upper[j] || (_x[j] <= _lower[j] && g > 0) || (_x[j] >= _upper[j] && g < 0)) continue;
                     free.Add(j);
                     double cn = ColumnNorm(j);
                     if (cn > 0) cosine = Math.Max(cosine, Math.Abs(g) / (cn * rnorm));

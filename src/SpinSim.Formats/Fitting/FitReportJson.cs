@@ -26,6 +26,7 @@ public static class FitReportJson
             ["iterations"] = result.Iterations,
             ["starts"] = result.Starts,
             ["starts_at_best"] = result.StartsAtBest,
+            ["starts_joined"] = result.StartsJoined,
             ["parameters"] = new JsonArray(result.Parameters.Select(p => (JsonNode)new JsonObject
             {
                 ["name"] = p.Name,

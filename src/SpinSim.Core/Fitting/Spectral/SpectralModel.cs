@@ -48,6 +48,12 @@ internal sealed class SpectralModel : ILeastSquaresModel
     private readonly int[] _spinParameters;
     private readonly double _singleNucleus;
 
+    // Analytic spin columns: the engine's line derivatives by each shift and coupling of the layout (in Hz), and for
+    // each full parameter the derivative it takes (-1 for other kinds).
+    private readonly SpinParameter[] _derivatives;
+    private readonly int[] _derivativeOf;
+    private readonly bool _analytic;
+
     public SpectralModel(SpinSystem system, ParameterLayout layout, IReadOnlyList<PreparedData> data, Lineshape shape, EngineOptions engine, double broadeningHz)
     {
         _system = system;
@@ -63,6 +69,21 @@ internal sealed class SpectralModel : ILeastSquaresModel
         _singleNucleus = Math.Pow(2, system.Nuclei.Sum(n => n.Count) - 1);
         _offsets = new int[data.Count + 1];
         for (var d = 0; d < data.Count; d++) _offsets[d + 1] = _offsets[d] + data[d].Count;
+
+        _derivativeOf = Enumerable.Repeat(-1, layout.Parameters.Count).ToArray();
+        var derivatives = new List<SpinParameter>();
+        foreach (var i in _spinParameters)
+        {
+            var p = layout.Parameters[i];
+            var c = p.Kind == ParameterKind.JHz ? system.Couplings[p.Index] : null;
+            _derivativeOf[i] = derivatives.Count;
+            derivatives.Add(c is null ? new SpinParameter(p.Index) : new SpinParameter(system.IndexOf(c.A), system.IndexOf(c.B)));
+        }
+        _derivatives = derivatives.ToArray();
+        // Line derivatives come from the whole system diagonalised as one (a split plan depends on structure only, so the
+        // start decides), and widths per entry follow the lines' origins, which the derivatives do not carry.
+        _analytic = !engine.PoolWeakLines && SpectrumEngine.PlanFor(system, engine).IsExact
+            && !layout.Parameters.Any(p => p.Kind == ParameterKind.LinewidthHz && p.Index >= 0);
     }
 
     public int ParameterCount => _layout.FreeCount;
@@ -85,17 +106,39 @@ internal sealed class SpectralModel : ILeastSquaresModel
     public double[] Steps { get; set; } = [];
 
     /// <summary>
-    /// Scale and baseline columns are exact (the model is linear in them); the others are central differences of the
-    /// model, which for widths, offsets and phases reuse the cached line lists.
+    /// Free values the minimiser holds in this run (its bounds coincide): their Jacobian columns are left at zero
+    /// instead of computed, since nothing reads them.
+    /// </summary>
+    public bool[] Held { get; set; } = [];
+
+    private bool IsHeld(int free) => Held.Length > free && Held[free];
+
+    /// <summary>
+    /// Scale and baseline columns are exact (the model is linear in them). Shift, coupling, common width, offset and
+    /// phase columns are analytic when the engine can give line derivatives (<see cref="AnalyticColumns"/>); otherwise,
+    /// and for widths per entry, they are central differences of the model (which for widths, offsets and phases reuse
+    /// the cached line lists).
     /// </summary>
     public bool TryJacobian(ReadOnlySpan<double> parameters, ReadOnlySpan<double> residuals, double[,] jacobian)
     {
         var x = parameters.ToArray();
         var full = _layout.Expand(x);
         var differenced = new List<int>();
+        var analytic = new List<int>();
         for (var f = 0; f < x.Length; f++)
         {
             var members = _layout.MembersOf(f).Select(i => _layout.Parameters[i]).ToArray();
+            if (IsHeld(f))
+            {
+                for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = 0;
+                continue;
+            }
+            if (_analytic && members.All(m => m.Kind is ParameterKind.ShiftPpm or ParameterKind.JHz or ParameterKind.OffsetHz or ParameterKind.PhaseDeg
+                    || (m.Kind == ParameterKind.LinewidthHz && m.Index < 0)))
+            {
+                analytic.Add(f);
+                continue;
+            }
             if (members.All(m => m.Kind == ParameterKind.Baseline))
             {
                 for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = 0;
@@ -124,6 +167,15 @@ internal sealed class SpectralModel : ILeastSquaresModel
             differenced.Add(f);
         }
 
+        var spinFailed = false;
+        if (analytic.Count > 0)
+        {
+            foreach (var f in analytic)
+                for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = 0;
+            for (var d = 0; d < _data.Count && !spinFailed; d++) spinFailed = !AnalyticColumns(full, d, jacobian);
+        }
+        if (spinFailed) return false;
+
         // The differenced columns are independent: spread them over the cores (each with its own buffers).
         Parallel.ForEach(differenced, column =>
         {
@@ -139,6 +191,258 @@ internal sealed class SpectralModel : ILeastSquaresModel
             for (var r = 0; r < ResidualCount; r++) jacobian[r, column] = (plus[r] - minus[r]) / (2 * h);
         });
         return true;
+    }
+
+    /// <summary>
+    /// Adds the exact derivatives of dataset <paramref name="d"/>'s model by every free shift, coupling, common width,
+    /// offset and phase to <paramref name="jacobian"/>, from one engine run with line derivatives. Each line contributes
+    /// dI_eff/dθ · v + I_eff dν/dθ · ∂v/∂ν for a shift or coupling θ, where v = k τ is its rendered unit-area profile
+    /// (k with phase, τ the window taper) and I_eff its intensity after the weak-line fade, and I_eff ∂v/∂θ for the
+    /// others. The window's dependence on intensity and width is included, so the columns are those of exactly the
+    /// function <see cref="Residuals"/> evaluates. False when the system cannot be built.
+    /// </summary>
+    private bool AnalyticColumns(double[] full, int d, double[,] jacobian)
+    {
+        LineList lines;
+        SpinSystem system;
+        try
+        {
+            system = SystemAt(full, d);
+            lines = SpectrumEngine.ComputeWithDerivatives(system, _engine, _derivatives);
+        }
+        catch (SpinSystemException) { return false; }
+        var data = _data[d];
+        var (scale, offsetHz, phaseDeg, globalWidth) = (1.0, 0.0, 0.0, double.NaN);
+        int widthColumn = -1, offsetColumn = -1, phaseColumn = -1;
+        for (var i = 0; i < full.Length; i++)
+        {
+            var p = _layout.Parameters[i];
+            if (p.Dataset >= 0 && p.Dataset != d) continue;
+            var f = _layout.FreeIndexOf(i);
+            var free = f >= 0 && !IsHeld(f) ? f : -1;
+            switch (p.Kind)
+            {
+                case ParameterKind.Scale: scale = full[i]; break;
+                case ParameterKind.OffsetHz: offsetHz = full[i]; offsetColumn = free; break;
+                case ParameterKind.PhaseDeg: phaseDeg = full[i]; phaseColumn = free; break;
+                case ParameterKind.LinewidthHz when p.Index < 0: globalWidth = full[i]; widthColumn = free; break;
+            }
+        }
+        if (!(globalWidth > 0)) return false;
+        var areaScale = scale / _singleNucleus / data.Normalisation;
+        var count = _derivatives.Length;
+        // One column of the fitted points per spin derivative, then width, offset and phase.
+        var columns = new double[data.Count * (count + 3)];
+        var work = new Workspace();
+        var a = new double[count];
+        var b = new double[count];
+        var c = new double[count];
+        var active = new int[count];
+        // Only the derivatives of free, unheld values are needed.
+        var wanted = new bool[count];
+        foreach (var i in _spinParameters)
+            if (_layout.FreeIndexOf(i) is var f && f >= 0 && !IsHeld(f)) wanted[_derivativeOf[i]] = true;
+        // A line whose intensity and moment move by less than this (per Hz of the parameter) is left out of a column:
+        // 1e-9 of one nucleus's line, far below anything the minimiser or the covariance can see.
+        var negligible = 1e-9 * _singleNucleus;
+        var profile = new Profile(_shape, globalWidth, _broadeningHz, phaseDeg, widthColumn >= 0, phaseColumn >= 0);
+        var others = widthColumn >= 0 || offsetColumn >= 0 || phaseColumn >= 0;
+        for (var l = 0; l < lines.Lines.Count; l++)
+        {
+            var intensity = lines.Lines[l].Intensity;
+            var relative = intensity / _singleNucleus;
+            if (relative < NegligibleIntensity) continue;
+            // The fade below 10 x NegligibleIntensity: I_eff = I s(I), dI_eff/dI = s + I s'(I).
+            double fade = 1, fadeSlope = 0;
+            if (relative < 10 * NegligibleIntensity)
+            {
+                var t = (10 * NegligibleIntensity - relative) / (9 * NegligibleIntensity);
+                fade = 1 - SmoothStep(t);
+                fadeSlope = 6 * t * (1 - t) / (9 * NegligibleIntensity * _singleNucleus);
+            }
+            var effective = intensity * fade;
+            var dEffective = fade + intensity * fadeSlope;
+            // Window half-width R = cutoff(I_eff) (L + G), with cutoff = 100 sqrt(I_eff / single) between its limits.
+            var share = effective / _singleNucleus;
+            var rawCutoff = CutoffWidths * Math.Sqrt(Math.Min(1, share));
+            var cutoff = Math.Max(MinimumCutoffWidths, rawCutoff);
+            var dReach = rawCutoff > MinimumCutoffWidths && share < 1 ? profile.Total * CutoffWidths * 0.5 / Math.Sqrt(share) / _singleNucleus : 0;
+            var di = lines.Derivatives!.IntensityOf(l);
+            var dm = lines.Derivatives.MomentOf(l);
+            var activeCount = 0;
+            for (var g = 0; g < count; g++)
+            {
+                if (!wanted[g] || (Math.Abs(di[g]) < negligible && Math.Abs(dm[g]) < negligible)) continue;
+                a[activeCount] = areaScale * dEffective * di[g];
+                b[activeCount] = -areaScale * fade * dm[g];
+                c[activeCount] = a[activeCount] * effective * dReach;
+                active[activeCount++] = g;
+            }
+            if (activeCount == 0 && !others) continue;
+            AddLineDerivatives(data.Hz, columns, count, lines.Lines[l].FrequencyHz + offsetHz, cutoff, profile,
+                active.AsSpan(0, activeCount), a, b, c, areaScale * effective, work);
+        }
+
+        // Chain rule to the free values: a shift in ppm moves its entry by the entry's observe frequency in Hz.
+        var row0 = _offsets[d];
+        foreach (var i in _spinParameters)
+        {
+            var f = _layout.FreeIndexOf(i);
+            if (f < 0 || IsHeld(f)) continue;
+            var p = _layout.Parameters[i];
+            var factor = p.Kind == ParameterKind.ShiftPpm ? system.Nuclei[p.Index].Isotope.ObserveMHz(system.Field) : 1.0;
+            var g = _derivativeOf[i];
+            for (var k = 0; k < data.Count; k++) jacobian[row0 + k, f] += factor * columns[g * data.Count + k];
+        }
+        foreach (var (column, slot) in new[] { (widthColumn, count), (offsetColumn, count + 1), (phaseColumn, count + 2) })
+            if (column >= 0)
+                for (var k = 0; k < data.Count; k++) jacobian[row0 + k, column] += columns[slot * data.Count + k];
+        return true;
+    }
+
+    /// <summary>The profile of every line of one evaluation: components, phase, and what is differentiated.</summary>
+    private sealed class Profile
+    {
+        public readonly double Half, Sigma, Denominator, Norm, Cos, Sin, Total;
+        public readonly bool Gaussian, Width, Phase;
+
+        /// <summary>d(Lorentzian half-width)/dw and dσ/σ dw: the components scale with the width (the broadening does not).</summary>
+        public readonly double HalfPerWidth, SigmaPerWidth, TotalPerWidth;
+
+        public Profile(Lineshape shape, double widthHz, double broadeningHz, double phaseDeg, bool width, bool phase)
+        {
+            var (lorentzian, gaussian) = shape.Components(widthHz);
+            Half = (lorentzian + broadeningHz) / 2;
+            Total = lorentzian + broadeningHz + gaussian;
+            Gaussian = gaussian > 0;
+            Sigma = Gaussian ? Lineshape.GaussianSigmaHz(gaussian) : 0;
+            Denominator = Sigma * Math.Sqrt(2);
+            Norm = Gaussian ? 1 / (Sigma * Math.Sqrt(2 * Math.PI)) : 0;
+            Cos = Math.Cos(phaseDeg * Math.PI / 180);
+            Sin = Math.Sin(phaseDeg * Math.PI / 180);
+            HalfPerWidth = lorentzian / widthHz / 2;
+            SigmaPerWidth = 1 / widthHz;
+            TotalPerWidth = (lorentzian + gaussian) / widthHz;
+            Width = width;
+            Phase = phase;
+        }
+    }
+
+    /// <summary>
+    /// For one line at <paramref name="centreHz"/> whose rendered profile is v = k(x - centre) τ(|x - centre|, R) (k of
+    /// unit area with phase, τ the taper of <see cref="AddLine"/>, R its window's half-width): adds
+    /// a_n v + b_n ∂v/∂x + c_n ∂v/∂R to the column of spin derivative <paramref name="active"/>[n], and e ∂v/∂w,
+    /// -e ∂v/∂x and e ∂v/∂φ (per degree) to the width, offset and phase columns, over the line's window.
+    /// <paramref name="columns"/> holds one column of the fitted points per slot (spin derivatives, width, offset, phase).
+    /// </summary>
+    private static void AddLineDerivatives(double[] hz, double[] columns, int slots, double centreHz, double cutoff, Profile q,
+        ReadOnlySpan<int> active, double[] a, double[] b, double[] c, double e, Workspace work)
+    {
+        var reach = cutoff * q.Total;
+        var first = LowerBound(hz, centreHz - reach);
+        var last = LowerBound(hz, centreHz + reach);
+        var length = last - first;
+        if (length <= 0) return;
+        var points = hz.Length;
+        var taperStart = TaperStart * reach;
+        var v = work.V(length);
+        var vx = work.Vx(length);
+        var vr = work.Vr(length);
+        var vw = work.Vw(length);
+        var vp = work.Vp(length);
+        var tapered = false;
+        for (var j = 0; j < length; j++)
+        {
+            var dx = hz[first + j] - centreHz;
+            double k, slope, byWidth = 0, byPhase = 0;
+            if (!q.Gaussian)
+            {
+                var q2 = dx * dx + q.Half * q.Half;
+                var numerator = q.Half * q.Cos - dx * q.Sin;
+                k = numerator / (Math.PI * q2);
+                slope = (-q.Sin * q2 - 2 * dx * numerator) / (Math.PI * q2 * q2);
+                if (q.Width) byWidth = (q.Cos * q2 - 2 * q.Half * numerator) / (Math.PI * q2 * q2) * q.HalfPerWidth;
+                if (q.Phase) byPhase = -(q.Half * q.Sin + dx * q.Cos) / (Math.PI * q2);
+            }
+            else
+            {
+                // w'(z) = -2 z w(z) + 2i / sqrt(pi) (the Faddeeva function's derivative); k = Re[w e^(i phi)] / (sigma sqrt(2 pi)).
+                var z = new Complex(dx / q.Denominator, q.Half / q.Denominator);
+                var w = Faddeeva.W(z);
+                var dw = -2 * z * w + new Complex(0, 2 / Math.Sqrt(Math.PI));
+                var rotation = new Complex(q.Cos, q.Sin);
+                var wr = w * rotation;
+                var dwr = dw * rotation;
+                k = q.Norm * wr.Real;
+                slope = q.Norm * dwr.Real / q.Denominator;
+                if (q.Width)
+                {
+                    // dz/d(half) = i / (sigma sqrt 2); d/d(sigma) acts on the norm (-k / sigma) and on z (-z / sigma).
+                    var byHalf = -q.Norm * dwr.Imaginary / q.Denominator;
+                    var bySigma = -k / q.Sigma - q.Norm * (dwr * z).Real / q.Sigma;
+                    byWidth = byHalf * q.HalfPerWidth + bySigma * q.Sigma * q.SigmaPerWidth;
+                }
+                if (q.Phase) byPhase = -q.Norm * wr.Imaginary;
+            }
+            var distance = Math.Abs(dx);
+            double taper = 1, taperByDistance = 0, taperByReach = 0;
+            if (distance > taperStart)
+            {
+                var t = (distance - taperStart) / (reach - taperStart);
+                var smoothSlope = 6 * t * (1 - t);
+                taper = 1 - SmoothStep(t);
+                taperByDistance = -smoothSlope / (reach - taperStart);
+                taperByReach = smoothSlope * 5 * distance / (reach * reach);
+                tapered = true;
+            }
+            v[j] = k * taper;
+            vx[j] = slope * taper + k * taperByDistance * Math.Sign(dx);
+            vr[j] = k * taperByReach;
+            vw[j] = byWidth * taper + vr[j] * cutoff * q.TotalPerWidth;
+            vp[j] = byPhase * taper * (Math.PI / 180);
+        }
+        for (var n = 0; n < active.Length; n++)
+        {
+            var column = columns.AsSpan(active[n] * points + first, length);
+            AddScaled(column, a[n], v, b[n], vx);
+            if (tapered && c[n] != 0) AddScaled(column, c[n], vr, 0, vr);
+        }
+        if (q.Width) AddScaled(columns.AsSpan(slots * points + first, length), e, vw, 0, vw);
+        AddScaled(columns.AsSpan((slots + 1) * points + first, length), -e, vx, 0, vx);
+        if (q.Phase) AddScaled(columns.AsSpan((slots + 2) * points + first, length), e, vp, 0, vp);
+    }
+
+    /// <summary>y += a x + b z, vectorised.</summary>
+    private static void AddScaled(Span<double> y, double a, ReadOnlySpan<double> x, double b, ReadOnlySpan<double> z)
+    {
+        var i = 0;
+        if (Vector.IsHardwareAccelerated && y.Length >= Vector<double>.Count)
+        {
+            var vy = System.Runtime.InteropServices.MemoryMarshal.Cast<double, Vector<double>>(y);
+            var vx = System.Runtime.InteropServices.MemoryMarshal.Cast<double, Vector<double>>(x);
+            var vz = System.Runtime.InteropServices.MemoryMarshal.Cast<double, Vector<double>>(z);
+            var (va, vb) = (new Vector<double>(a), new Vector<double>(b));
+            for (var k = 0; k < vy.Length; k++) vy[k] += va * vx[k] + vb * vz[k];
+            i = vy.Length * Vector<double>.Count;
+        }
+        for (; i < y.Length; i++) y[i] += a * x[i] + b * z[i];
+    }
+
+    /// <summary>Scratch profiles of one line, reused from line to line.</summary>
+    private sealed class Workspace
+    {
+        private double[] _v = [], _vx = [], _vr = [], _vw = [], _vp = [];
+        public Span<double> V(int n) => Ensure(ref _v, n);
+        public Span<double> Vx(int n) => Ensure(ref _vx, n);
+        public Span<double> Vr(int n) => Ensure(ref _vr, n);
+        public Span<double> Vw(int n) => Ensure(ref _vw, n);
+        public Span<double> Vp(int n) => Ensure(ref _vp, n);
+
+        private static Span<double> Ensure(ref double[] array, int n)
+        {
+            if (array.Length < n) array = new double[Math.Max(n, 2 * array.Length)];
+            return array.AsSpan(0, n);
+        }
     }
 
     private double[] Baseline(double[] full, int d)
@@ -284,13 +588,16 @@ internal sealed class SpectralModel : ILeastSquaresModel
         return lo;
     }
 
+    /// <summary>The system with the spin values of <paramref name="full"/>, at the field of dataset <paramref name="d"/>.</summary>
+    private SpinSystem SystemAt(double[] full, int d) =>
+        _layout.ApplySpin(_system, full).WithField(new Units.FieldMHz(_data[d].ObserveMHz / _system.Observed.FrequencyRatioPercent * 100));
+
     private LineList LinesFor(double[] full, int d)
     {
         var key = string.Join(",", _spinParameters.Select(i => BitConverter.DoubleToInt64Bits(full[i])));
         var cache = _cache[d];
         if (cache.TryGetValue(key, out var cached)) return cached;
-        var system = _layout.ApplySpin(_system, full).WithField(new Units.FieldMHz(_data[d].ObserveMHz / _system.Observed.FrequencyRatioPercent * 100));
-        var lines = SpectrumEngine.Compute(system, _engine);
+        var lines = SpectrumEngine.Compute(SystemAt(full, d), _engine);
         if (cache.Count > 256) cache.Clear();
         cache[key] = lines;
         return lines;

@@ -35,6 +35,9 @@ public sealed record SpectrumFitResult
     public required int Iterations { get; init; }
     public required int Starts { get; init; }
     public required int StartsAtBest { get; init; }
+
+    /// <summary>Starts that came onto another start's path during a broadened stage and share its outcome (counted in <see cref="StartsAtBest"/> with it).</summary>
+    public int StartsJoined { get; init; }
     public required IReadOnlyList<string> Warnings { get; init; }
     public required SpinSystem FittedSystem { get; init; }
     public required WidthHz? FittedWidth { get; init; }

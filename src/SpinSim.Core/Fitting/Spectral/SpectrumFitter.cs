@@ -70,23 +70,43 @@ public static class SpectrumFitter
         }
 
         // Every start runs every stage on thinned points (>= 10 per linewidth at the last stage); the best is then
-        // polished on all points, and that run gives the reported statistics.
+        // polished on all points, and that run gives the reported statistics. The stages run one after the other for
+        // all starts: after each broadened stage, a start that has come within a small fraction of the stage's
+        // linewidth of another start is on that start's path from there on (the narrower stages see no difference),
+        // so it stops and shares the other's outcome.
         // The broadened, thinned data of each stage is the same for every start.
         var stageData = stages.Select(stage => prepared.Select((p, d) => p.Broadened(problem.Data[d].Trace, stage.BroadeningHz, stage.Stride)).ToArray()).ToArray();
-        var outcomes = new (double[] Free, LeastSquaresResult Result)[starts.Count];
-        Parallel.For(0, starts.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
+        var current = starts.Select(x => (double[])x.Clone()).ToArray();
+        var last = new LeastSquaresResult?[starts.Count];
+        var follows = Enumerable.Range(0, starts.Count).ToArray();
+        var running = Enumerable.Range(0, starts.Count).ToList();
+        var widthHz = problem.Parameters.Where(p => p.Kind == ParameterKind.LinewidthHz).Select(p => p.Start).DefaultIfEmpty(1).Min();
+        for (var k = 0; k < stages.Count; k++)
         {
-            var x = starts[s];
-            LeastSquaresResult? last = null;
-            for (var k = 0; k < stages.Count; k++)
+            if (options.Cancel.IsCancellationRequested && last[0] is not null) break;
+            var stage = stages[k];
+            Parallel.ForEach(running, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
             {
-                if (options.Cancel.IsCancellationRequested && last is not null) break;
-                var stage = stages[k];
-                last = RunStage(problem, layout, stageData[k], engine, stage, x, lower, upper, options, s, k, stages.Count);
-                x = last.Parameters;
+                last[s] = RunStage(problem, layout, stageData[k], engine, stage, current[s], lower, upper, options, s, k, stages.Count);
+                current[s] = last[s]!.Parameters;
+            });
+            if (stage.BroadeningHz <= 0) continue;
+            var toleranceHz = JoinFraction * (stage.BroadeningHz + widthHz);
+            var kept = new List<int>();
+            foreach (var s in running)
+            {
+                var leader = kept.FirstOrDefault(t => SpinDistanceHz(layout, current[s], current[t], problem.Data[0].ObserveMHz) <= toleranceHz, -1);
+                if (leader >= 0) follows[s] = leader; else kept.Add(s);
             }
-            outcomes[s] = (x, last!);
-        });
+            running = kept;
+        }
+        var outcomes = Enumerable.Range(0, starts.Count).Select(s =>
+        {
+            var leader = s;
+            while (follows[leader] != leader) leader = follows[leader];
+            return (Free: current[leader], Result: last[leader]!);
+        }).ToArray();
+        var joined = starts.Count - running.Count;
 
         var bestCost = outcomes.Min(o => o.Result.ResidualSumOfSquares);
         var atBest = outcomes.Where(o => o.Result.ResidualSumOfSquares <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
@@ -99,7 +119,7 @@ public static class SpectrumFitter
             : RunStage(problem, layout, prepared, engine, new Stage(0, 1, false), best.Free, lower, upper, options, -1, stages.Count, stages.Count + 1);
         var finalModel = new SpectralModel(problem.System, layout, prepared, problem.Shape, engine, 0);
         return SpectrumFitResult.Build(problem, layout, finalModel, polish.Parameters, polish, starts.Count, reached,
-            options.Cancel.IsCancellationRequested);
+            options.Cancel.IsCancellationRequested) with { StartsJoined = joined };
     }
 
     /// <summary>
@@ -138,6 +158,30 @@ public static class SpectrumFitter
         return x;
     }
 
+    /// <summary>
+    /// A start stops once all its shifts and couplings lie within this fraction of the current stage's total linewidth
+    /// (broadening plus line width) of another start's: minima of a cost broadened that much are further apart.
+    /// </summary>
+    internal const double JoinFraction = 0.01;
+
+    /// <summary>Largest difference in Hz between two free vectors over the shifts and couplings.</summary>
+    private static double SpinDistanceHz(ParameterLayout layout, double[] a, double[] b, double observeMHz)
+    {
+        var largest = 0.0;
+        for (var f = 0; f < layout.FreeCount; f++)
+        {
+            var p = layout.Parameters[layout.FreeRepresentatives[f]];
+            var hz = p.Kind switch
+            {
+                ParameterKind.ShiftPpm => Math.Abs(a[f] - b[f]) * observeMHz,
+                ParameterKind.JHz => Math.Abs(a[f] - b[f]),
+                _ => 0,
+            };
+            largest = Math.Max(largest, hz);
+        }
+        return largest;
+    }
+
     private static double ShiftDistance(ParameterLayout layout, double[] a, double[] b) =>
         Enumerable.Range(0, layout.FreeCount).Where(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.ShiftPpm)
             .Sum(f => Math.Abs(a[f] - b[f]));
@@ -162,6 +206,7 @@ public static class SpectrumFitter
             if (stage.BroadeningHz > 0 && kind == ParameterKind.Scale)
                 (lo[f], hi[f]) = (Math.Max(lo[f], x[f] / 2), Math.Min(hi[f], x[f] * 2));
         }
+        model.Held = lo.Select((l, f) => l == hi[f]).ToArray();
         var progress = options.Progress is null ? null : new InlineProgress<LeastSquaresProgress>(p =>
             options.Progress.Report(new FitProgress(start, index + 1, count, stage.BroadeningHz, p.Iteration, p.ResidualSumOfSquares)));
         return LevenbergMarquardt.Minimise(model, x, new LeastSquaresOptions
@@ -169,9 +214,11 @@ public static class SpectrumFitter
             LowerBounds = lo,
             UpperBounds = hi,
             MaxIterations = options.MaxIterationsPerStage,
-            GradientTolerance = 1e-10,
-            StepTolerance = 1e-10,
-            FunctionTolerance = 1e-12,
+            // A broadened stage only has to bring the next one into its basin: a relative change of the cost below
+            // 1e-6 there changes nothing that the narrower stages see. The last stage and the polish converge fully.
+            GradientTolerance = stage.BroadeningHz > 0 ? 1e-8 : 1e-10,
+            StepTolerance = stage.BroadeningHz > 0 ? 1e-6 : 1e-10,
+            FunctionTolerance = stage.BroadeningHz > 0 ? 1e-6 : 1e-12,
             Progress = progress,
             Cancellation = options.Cancel,
         });
@@ -206,8 +253,14 @@ public static class SpectrumFitter
     /// <summary>
     /// Continuation from broad to narrow lines: Lorentzian broadening of data and model from max(2 x shift jitter, max |J|)
     /// down by thirds while above 2 Hz, then none. Couplings are held while the broadening exceeds half the largest |J|
-    /// (the blurred pattern tells little about them). Points are thinned to about six per broadened linewidth.
+    /// (the blurred pattern tells little about them). Points are thinned to about <see cref="BroadenedPointsPerWidth"/> per broadened linewidth.
     /// </summary>
+    /// <summary>
+    /// Points kept per linewidth in a broadened stage: a Lorentzian sampled this densely is fitted as well as one
+    /// sampled densely, and each stage only has to bring the next into its basin.
+    /// </summary>
+    private const double BroadenedPointsPerWidth = 8;
+
     private static List<Stage> Stages(SpectrumFitProblem problem, SpectrumFitOptions options)
     {
         var stages = new List<Stage>();
@@ -216,7 +269,7 @@ public static class SpectrumFitter
         var maxJ = problem.System.Couplings.Select(c => Math.Abs(c.J.Value)).DefaultIfEmpty(0).Max();
         if (options.Continuation)
             for (var w = Math.Max(2 * options.ShiftJitterHz, maxJ); w > 2.0; w /= 3)
-                stages.Add(new Stage(w, Math.Max(1, (int)((w + width) / 20 / finestStep)), w > maxJ / 2));
+                stages.Add(new Stage(w, Math.Max(1, (int)((w + width) / BroadenedPointsPerWidth / finestStep)), w > maxJ / 2));
         stages.Add(new Stage(0, Math.Max(1, (int)(width / 10 / finestStep)), false));
         return stages;
     }
