@@ -36,13 +36,19 @@ public static class FitCommand
         var report = new Option<string?>("--report") { Description = "Write the fit report as JSON" };
         var writeSystem = new Option<string?>("--write-system") { Description = "Write the best-fit system as a TOML file that simulate accepts" };
         var html = new Option<string?>("--html") { Description = "Write a self-contained HTML report with the figure, parameters, warnings and input hashes" };
+        var bootstrap = new Option<int>("--bootstrap")
+        {
+            Description = "After the fit, refit this many block-bootstrap replicates (model plus resampled blocks of neighbouring residuals) " +
+                          "and report their scatter as a second standard error that does not assume independent points; 0 (default) for none",
+            DefaultValueFactory = _ => 0,
+        };
         var quiet = new Option<bool>("--quiet", "-q") { Description = "No progress on stderr" };
         var data = new DataFileOptions();
         var figure = new FigureChoice();
         var engine = new EngineChoice();
         var command = new Command("fit", "Fit shifts, couplings, linewidth, scale and baseline to a measured spectrum by nonlinear least squares")
         {
-            file, dataFiles, setupFile, linewidth, shape, starts, seed, report, writeSystem, html, quiet,
+            file, dataFiles, setupFile, linewidth, shape, starts, seed, bootstrap, report, writeSystem, html, quiet,
         };
         data.AddTo(command);
         figure.AddTo(command);
@@ -105,6 +111,21 @@ public static class FitCommand
             }
             catch (ArgumentException e) { throw new UserInputException(e.Message); }
             progress?.Finish();
+            var replicates = parse.GetValue(bootstrap);
+            if (replicates is < 0 or 1 or > 10000) throw new UserInputException($"--bootstrap must be 0 (none) or from 2 to 10000, got {replicates}");
+            if (replicates > 0 && !result.Stopped)
+            {
+                if (!parse.GetValue(quiet)) io.Error.WriteLine($"  bootstrap: {replicates} refits (Ctrl+C skips them)");
+                try
+                {
+                    result = result.WithBootstrap(SpectrumBootstrap.Run(problem, result, new BootstrapOptions(replicates, Seed: parse.GetValue(seed),
+                        Cancel: io.Cancel, Engine: engine.Read(parse))));
+                }
+                catch (OperationCanceledException)
+                {
+                    io.Error.WriteLine("warning: the bootstrap was stopped; no bootstrap standard errors are reported");
+                }
+            }
 
             PrintReport(io.Out, result, systemPath, paths);
 
@@ -158,7 +179,17 @@ public static class FitCommand
         // A tied group is shown once, on the row of its first member.
         result.Parameters.Where((p, i) => p.TiedWith is null || !result.Parameters.Take(i).Any(q => p.TiedWith.Split(", ").Contains(q.Name)))
             .Select(p => new ParameterRow(p.TiedWith is null ? p.Name : $"{p.Name} (= {p.TiedWith})", Format(p.Value, p.Kind),
-                !p.Varied ? "fixed" : double.IsFinite(p.StdError) ? p.StdError.ToString("G2", CultureInfo.InvariantCulture) : "undetermined", p.Unit)).ToList();
+                StdErrorText(result, p), p.Unit)).ToList();
+
+    private static string StdErrorText(SpectrumFitResult result, FittedParameter p)
+    {
+        if (!p.Varied) return "fixed";
+        var text = double.IsFinite(p.StdError) ? p.StdError.ToString("G2", CultureInfo.InvariantCulture) : "undetermined";
+        var i = result.Parameters.ToList().IndexOf(p);
+        if (result.Bootstrap is { } b && double.IsFinite(b.StdErrors[i]))
+            text += $" ({b.StdErrors[i].ToString("G2", CultureInfo.InvariantCulture)})";
+        return text;
+    }
 
     private static IReadOnlyList<(string Label, string Value)> Statistics(SpectrumFitResult r) =>
     [
@@ -170,6 +201,7 @@ public static class FitCommand
         ("iterations (final run)", r.Iterations.ToString(CultureInfo.InvariantCulture)),
         ("starts reaching the best optimum", $"{r.StartsAtBest} of {r.Starts}"),
         ("starts that joined another's path", r.StartsJoined.ToString(CultureInfo.InvariantCulture)),
+        ("block bootstrap", r.Bootstrap is { } b ? $"{b.Converged} of {b.Replicates} refits, blocks of {b.BlockPoints} points (errors in brackets)" : "not run"),
     ];
 
     private static string Format(double v, ParameterKind kind) => kind switch
@@ -187,10 +219,14 @@ public static class FitCommand
                     $"{r.Iterations} iterations in the final run, {r.StartsAtBest} of {r.Starts} starts reached the best optimum" +
                     (r.StartsJoined > 0 ? $" ({r.StartsJoined} joined another start's path on the way)" : ""));
         o.WriteLine();
-        o.WriteLine($"  {"parameter",-28} {"value",14} {"std error",12}  unit");
-        foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError,12}  {row.Unit}");
+        o.WriteLine($"  {"parameter",-28} {"value",14} {(r.Bootstrap is null ? "std error" : "std error (bootstrap)"),22}  unit");
+        foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError,22}  {row.Unit}");
         o.WriteLine();
         o.WriteLine("Standard errors assume independent points; neighbouring points of a spectrum are correlated, so they are optimistic.");
+        if (r.Bootstrap is { } b)
+            o.WriteLine($"Bootstrap errors (in brackets): scatter of {b.Converged} refits to the model plus residuals resampled in blocks of {b.BlockPoints} points.");
+        else
+            o.WriteLine("Give --bootstrap N for errors that allow for the correlation (a block bootstrap of N refits).");
         foreach (var w in r.Warnings) o.WriteLine($"warning: {w}");
     }
 

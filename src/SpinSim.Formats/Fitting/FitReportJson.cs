@@ -27,7 +27,14 @@ public static class FitReportJson
             ["starts"] = result.Starts,
             ["starts_at_best"] = result.StartsAtBest,
             ["starts_joined"] = result.StartsJoined,
-            ["parameters"] = new JsonArray(result.Parameters.Select(p => (JsonNode)new JsonObject
+            ["bootstrap"] = result.Bootstrap is { } b ? new JsonObject
+            {
+                ["method"] = "moving-block residual bootstrap (Kunsch 1989), refitted from the best point",
+                ["replicates"] = b.Replicates,
+                ["converged"] = b.Converged,
+                ["block_points"] = b.BlockPoints,
+            } : null,
+            ["parameters"] = new JsonArray(result.Parameters.Select((p, i) => (JsonNode)new JsonObject
             {
                 ["name"] = p.Name,
                 ["kind"] = Kind(p.Kind),
@@ -35,6 +42,7 @@ public static class FitReportJson
                 ["trace"] = p.Dataset < 0 ? null : p.Dataset + 1,
                 ["value"] = p.Value,
                 ["std_error"] = double.IsFinite(p.StdError) ? p.StdError : null,
+                ["bootstrap_std_error"] = result.Bootstrap is { } bs && double.IsFinite(bs.StdErrors[i]) ? bs.StdErrors[i] : null,
                 ["unit"] = p.Unit,
                 ["varied"] = p.Varied,
                 ["tied_with"] = p.TiedWith,

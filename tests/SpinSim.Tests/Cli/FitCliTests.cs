@@ -35,7 +35,7 @@ public class FitCliTests
         var parameters = root.GetProperty("parameters").EnumerateArray().ToList();
         var jbx = parameters.Single(p => p.GetProperty("name").GetString() == "j:HB-HX");
         Assert.Equal("j_hz", jbx.GetProperty("kind").GetString());
-        Assert.Equal(["HB", "HX"], jbx.GetProperty("nuclei").EnumerateArray().Select(n => n.GetString()).ToArray());
+        Assert.Equal(["HB", "HX"], jbx.GetProperty("nuclei").EnumerateArray().Select(n => n.GetString()!).ToArray());
         Assert.Equal(8.9, jbx.GetProperty("value").GetDouble(), 0.02);
         Assert.True(jbx.GetProperty("std_error").GetDouble() > 0);
         Assert.Contains(parameters, p => p.GetProperty("kind").GetString() == "linewidth_hz" && p.GetProperty("nuclei").GetArrayLength() == 0);
@@ -68,6 +68,31 @@ public class FitCliTests
         Assert.Contains("\"shift:HQ\" names no parameter", err);
         File.Delete(data);
         File.Delete(start);
+    }
+
+    /// <summary>
+    /// --bootstrap N adds block-bootstrap errors to the text, the JSON report and the table; the simulated noise is
+    /// independent from point to point, so they come out close to the covariance errors.
+    /// </summary>
+    [Fact]
+    public void BootstrapErrorsAreReported()
+    {
+        var (data, start) = SyntheticAbx();
+        var report = Temp(".json");
+        var (code, o, err) = CliTests.Run("fit", start, "--data", data, "--starts", "1", "-q", "--bootstrap", "20", "--report", report);
+        Assert.True(code == 0, err + o);
+        Assert.Contains("Bootstrap errors (in brackets)", o);
+        using var json = JsonDocument.Parse(File.ReadAllText(report));
+        var bootstrap = json.RootElement.GetProperty("bootstrap");
+        Assert.Equal(20, bootstrap.GetProperty("replicates").GetInt32());
+        Assert.True(bootstrap.GetProperty("block_points").GetInt32() >= 1);
+        foreach (var p in json.RootElement.GetProperty("parameters").EnumerateArray().Where(p => p.GetProperty("kind").GetString() is "shift_ppm" or "j_hz"))
+        {
+            var ratio = p.GetProperty("bootstrap_std_error").GetDouble() / p.GetProperty("std_error").GetDouble();
+            Assert.True(ratio is > 0.5 and < 2, $"{p.GetProperty("name").GetString()}: bootstrap / covariance = {ratio:0.00}");
+        }
+        Assert.Equal(1, CliTests.Run("fit", start, "--data", data, "-q", "--bootstrap", "1").Code);
+        foreach (var f in new[] { data, start, report }) File.Delete(f);
     }
 
     [Fact]

@@ -36,6 +36,27 @@ public sealed record SpectrumFitResult
     public required int Starts { get; init; }
     public required int StartsAtBest { get; init; }
 
+    /// <summary>Block-bootstrap standard errors, when asked for (<see cref="SpectrumBootstrap"/>).</summary>
+    public BootstrapResult? Bootstrap { get; init; }
+
+    /// <summary>
+    /// The result with <paramref name="bootstrap"/> attached, and a warning for every varied shift or coupling whose
+    /// bootstrap error exceeds its covariance error by more than <paramref name="factor"/>.
+    /// </summary>
+    public SpectrumFitResult WithBootstrap(BootstrapResult bootstrap, double factor = 2)
+    {
+        var warnings = Warnings.ToList();
+        var understated = Parameters.Select((p, i) => (p, b: bootstrap.StdErrors[i]))
+            .Where(t => t.p.Varied && t.p.Kind is ParameterKind.ShiftPpm or ParameterKind.JHz && t.b > factor * t.p.StdError)
+            .Select(t => $"{t.p.Name} ({t.b / t.p.StdError:0.#} x)").ToList();
+        if (understated.Count > 0)
+            warnings.Add($"the block bootstrap scatters more than the covariance standard errors say for {string.Join(", ", understated)}: " +
+                         "quote the bootstrap errors");
+        if (bootstrap.Converged < bootstrap.Replicates)
+            warnings.Add($"{bootstrap.Replicates - bootstrap.Converged} of {bootstrap.Replicates} bootstrap refits did not converge and were left out");
+        return this with { Bootstrap = bootstrap, Warnings = warnings };
+    }
+
     /// <summary>Starts that came onto another start's path during a broadened stage and share its outcome (counted in <see cref="StartsAtBest"/> with it).</summary>
     public int StartsJoined { get; init; }
     public required IReadOnlyList<string> Warnings { get; init; }
