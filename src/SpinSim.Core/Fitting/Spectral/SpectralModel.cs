@@ -8,8 +8,11 @@ namespace SpinSim.Core.Fitting.Spectral;
 /// <summary>
 /// The least-squares model of a spectrum fit: free values -> spin system -> lines at each trace's field -> trace on the
 /// fitted points, with scale, polynomial baseline, frequency offset and zero-order phase per trace. Residual = model - data.
-/// Line lists are cached by their shift and coupling values, so derivatives in the other parameters cost no
-/// diagonalisation. Safe for the parallel Jacobian columns; one instance per fit start.
+/// The Jacobian is analytic where the engine can differentiate the lines (one diagonalisation per evaluation);
+/// otherwise its columns are central differences, for which line lists are cached by their shift and coupling values
+/// so that derivatives in the other parameters cost no diagonalisation. <see cref="Residuals"/> and <see cref="Model"/>
+/// may run on several threads at once; <see cref="TryJacobian"/> reuses its buffers and may not. One instance per fit
+/// start and stage.
 /// </summary>
 internal sealed class SpectralModel : ILeastSquaresModel
 {
@@ -53,6 +56,8 @@ internal sealed class SpectralModel : ILeastSquaresModel
     private readonly SpinParameter[] _derivatives;
     private readonly int[] _derivativeOf;
     private readonly bool _analytic;
+    private double[] _columns = [];
+    private readonly Workspace _workspace = new();
 
     public SpectralModel(SpinSystem system, ParameterLayout layout, IReadOnlyList<PreparedData> data, Lineshape shape, EngineOptions engine, double broadeningHz)
     {
@@ -231,9 +236,11 @@ internal sealed class SpectralModel : ILeastSquaresModel
         if (!(globalWidth > 0)) return false;
         var areaScale = scale / _singleNucleus / data.Normalisation;
         var count = _derivatives.Length;
-        // One column of the fitted points per spin derivative, then width, offset and phase.
-        var columns = new double[data.Count * (count + 3)];
-        var work = new Workspace();
+        // One column of the fitted points per spin derivative, then width, offset and phase (kept between calls: at
+        // full resolution it is megabytes, and the Jacobian is asked for at every accepted step).
+        var columns = _columns.Length >= data.Count * (count + 3) ? _columns : _columns = new double[data.Count * (count + 3)];
+        Array.Clear(columns, 0, data.Count * (count + 3));
+        var work = _workspace;
         var a = new double[count];
         var b = new double[count];
         var c = new double[count];
