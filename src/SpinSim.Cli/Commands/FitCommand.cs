@@ -159,7 +159,7 @@ public static class FitCommand
                 var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(FitFigure.Create(FigureData(result, systemPath), figureOptions), FigureFormat.Svg, figureOptions));
                 var page = HtmlFitReport.Render(new FitReportData(
                     $"SpinSim fit of {Path.GetFileName(systemPath)}", svg, Rows(result), result.Warnings, hashes, Versions.Current, created,
-                    Statistics(result), new ParameterCorrelation(result.FreeNames, result.Correlation)));
+                    Statistics(result), new ParameterCorrelation(result.FreeNames, result.Correlation)) { ErrorHeading = ErrorHeading(result) });
                 AtomicFile.Write(htmlPath, w => w.Write(page), inputs);
                 io.Out.WriteLine($"HTML report written to {htmlPath}");
             }
@@ -172,7 +172,7 @@ public static class FitCommand
     {
         var t = result.Traces[0];
         return new FitFigureData(t.Measured, t.Model, t.Residual, Rows(result),
-            $"Fit of {Path.GetFileName(systemPath)}");
+            $"Fit of {Path.GetFileName(systemPath)}") { ErrorHeading = ErrorHeading(result) };
     }
 
     internal static IReadOnlyList<ParameterRow> Rows(SpectrumFitResult result) =>
@@ -180,6 +180,8 @@ public static class FitCommand
         result.Parameters.Where((p, i) => p.TiedWith is null || !result.Parameters.Take(i).Any(q => p.TiedWith.Split(", ").Contains(q.Name)))
             .Select(p => new ParameterRow(p.TiedWith is null ? p.Name : $"{p.Name} (= {p.TiedWith})", Format(p.Value, p.Kind),
                 StdErrorText(result, p), p.Unit)).ToList();
+
+    private static string ErrorHeading(SpectrumFitResult result) => result.Bootstrap is null ? "std. error" : "std. error (bootstrap)";
 
     private static string StdErrorText(SpectrumFitResult result, FittedParameter p)
     {
@@ -219,8 +221,9 @@ public static class FitCommand
                     $"{r.Iterations} iterations in the final run, {r.StartsAtBest} of {r.Starts} starts reached the best optimum" +
                     (r.StartsJoined > 0 ? $" ({r.StartsJoined} joined another start's path on the way)" : ""));
         o.WriteLine();
-        o.WriteLine($"  {"parameter",-28} {"value",14} {(r.Bootstrap is null ? "std error" : "std error (bootstrap)"),22}  unit");
-        foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError,22}  {row.Unit}");
+        var errorWidth = r.Bootstrap is null ? 12 : 22;
+        o.WriteLine($"  {"parameter",-28} {"value",14} {(r.Bootstrap is null ? "std error" : "std error (bootstrap)").PadLeft(errorWidth)}  unit");
+        foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError.PadLeft(errorWidth)}  {row.Unit}");
         o.WriteLine();
         o.WriteLine("Standard errors assume independent points; neighbouring points of a spectrum are correlated, so they are optimistic.");
         if (r.Bootstrap is { } b)

@@ -14,7 +14,11 @@ public sealed record FitFigureData(
     double[] FittedIntensity,
     double[] Residual,
     IReadOnlyList<ParameterRow> Parameters,
-    string Title);
+    string Title)
+{
+    /// <summary>Heading of the error column (say what a second value in brackets is).</summary>
+    public string ErrorHeading { get; init; } = "std. error";
+}
 
 /// <summary>A fit at a glance: measured and fitted spectra overlaid, the residual below, the parameters beside.</summary>
 public static class FitFigure
@@ -94,7 +98,7 @@ public static class FitFigure
         if (parameters.Count > 0)
         {
             var above = BundledFont.LineHeight(model.TitleFontSize) + model.TitlePadding + BundledFont.LineHeight(font) * 1.5;
-            var table = ParameterTable(parameters, font, size.HeightUnits - model.Padding.Top - model.Padding.Bottom - above);
+            var table = ParameterTable(parameters, data.ErrorHeading, font, size.HeightUnits - model.Padding.Top - model.Padding.Bottom - above);
             model.Annotations.Add(table);
             model.PlotMargins = new OxyThickness(double.NaN, double.NaN, table.Width + 2 * table.Gap, double.NaN);
         }
@@ -109,13 +113,13 @@ public static class FitFigure
 
     // Long tables get smaller text, down to a legible floor; rows beyond that are summarised when drawn.
     // The height estimate leaves room for the title and the legend row above the plot area.
-    private static SideTableAnnotation ParameterTable(IReadOnlyList<ParameterRow> parameters, double font, double availableHeight)
+    private static SideTableAnnotation ParameterTable(IReadOnlyList<ParameterRow> parameters, string errorHeading, double font, double availableHeight)
     {
         var tableFont = font;
         while (SideTableAnnotation.RowsThatFit(availableHeight, tableFont) < parameters.Count && tableFont > font * SmallestTableFontScale)
             tableFont *= 0.95;
         var rows = parameters.Select(p => new[] { p.Name ?? "", p.Value ?? "", PlusMinus(p.StdError), p.Unit ?? "" }).ToArray();
-        return new SideTableAnnotation("Fitted parameters", ["parameter", "value", "std. error", "unit"], rows,
+        return new SideTableAnnotation("Fitted parameters", ["parameter", "value", errorHeading, "unit"], rows,
             [false, true, true, false], tableFont);
     }
 

@@ -20,4 +20,8 @@ public sealed record FitReportData(
     string Version,
     DateTimeOffset Created,
     IReadOnlyList<(string Label, string Value)> Statistics,
-    ParameterCorrelation? Correlation = null);
+    ParameterCorrelation? Correlation = null)
+{
+    /// <summary>Heading of the error column (say what a second value in brackets is).</summary>
+    public string ErrorHeading { get; init; } = "std. error";
+}

@@ -61,7 +61,7 @@ public static class HtmlFitReport
 
         body.Add(E("h2", "Fitted parameters"));
         body.Add(data.Parameters is { Count: > 0 } parameters
-            ? Table(["parameter", "value", "std. error", "unit"],
+            ? Table(["parameter", "value", data.ErrorHeading, "unit"],
                 parameters.Select(p => new[] { Cell(p.Name), Num(p.Value), Num(p.StdError), Cell(p.Unit) }))
             : E("p", "No parameters were fitted."));
 

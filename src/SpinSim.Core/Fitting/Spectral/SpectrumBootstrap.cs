@@ -48,7 +48,8 @@ public static class SpectrumBootstrap
         var done = 0;
         Parallel.For(0, options.Replicates, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount, CancellationToken = options.Cancel }, r =>
         {
-            var random = new Random(HashCode.Combine(options.Seed, r));
+            // A seed per replicate, the same in every run (HashCode is salted per process, so not that).
+            var random = new Random(unchecked(options.Seed * 1_000_003 + r));
             var data = problem.Data.Select((d, k) =>
             {
                 var t = fit.Traces[k];
