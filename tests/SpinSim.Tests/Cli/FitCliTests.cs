@@ -32,6 +32,8 @@ public class FitCliTests
         var root = json.RootElement;
         Assert.True(root.GetProperty("converged").GetBoolean());
         Assert.True(root.GetProperty("rms").GetDouble() < 0.01);
+        Assert.InRange(root.GetProperty("starts_joined").GetInt32(), 0, 1);
+        Assert.Equal(JsonValueKind.Null, root.GetProperty("bootstrap").ValueKind);
         var parameters = root.GetProperty("parameters").EnumerateArray().ToList();
         var jbx = parameters.Single(p => p.GetProperty("name").GetString() == "j:HB-HX");
         Assert.Equal("j_hz", jbx.GetProperty("kind").GetString());

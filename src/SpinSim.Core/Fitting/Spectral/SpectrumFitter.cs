@@ -18,6 +18,8 @@ public sealed record SpectrumFitProblem(
 /// <param name="ShiftJitterHz">Starts other than the first move each varied shift by up to this many Hz.</param>
 /// <param name="CouplingJitterFraction">... and each varied coupling by up to this fraction of its value.</param>
 /// <param name="Continuation">Fit broadened copies of data and model first, narrowing in stages down to none.</param>
+/// <param name="JoinStarts">Let a start that comes onto another start's path during a broadened stage stop and share
+/// its outcome (see <see cref="SpectrumFitter.JoinFraction"/>); off, every start runs every stage.</param>
 public sealed record SpectrumFitOptions(
     int Starts = 8,
     double ShiftJitterHz = 10,
@@ -27,7 +29,8 @@ public sealed record SpectrumFitOptions(
     int MaxIterationsPerStage = 300,
     IProgress<FitProgress>? Progress = null,
     CancellationToken Cancel = default,
-    EngineOptions? Engine = null);
+    EngineOptions? Engine = null,
+    bool JoinStarts = true);
 
 /// <summary>Progress of a fit: which start and stage, and the cost so far.</summary>
 public sealed record FitProgress(int Start, int Stage, int Stages, double BroadeningHz, int Iteration, double ResidualSumOfSquares);
@@ -90,7 +93,7 @@ public static class SpectrumFitter
                 last[s] = RunStage(problem, layout, stageData[k], engine, stage, current[s], lower, upper, options, s, k, stages.Count);
                 current[s] = last[s]!.Parameters;
             });
-            if (stage.BroadeningHz <= 0) continue;
+            if (stage.BroadeningHz <= 0 || !options.JoinStarts) continue;
             var toleranceHz = JoinFraction * (stage.BroadeningHz + widthHz);
             var kept = new List<int>();
             foreach (var s in running)
