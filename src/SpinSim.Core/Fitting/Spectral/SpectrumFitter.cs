@@ -98,7 +98,7 @@ public static class SpectrumFitter
             var kept = new List<int>();
             foreach (var s in running)
             {
-                var leader = kept.FirstOrDefault(t => SpinDistanceHz(layout, current[s], current[t], problem.Data[0].ObserveMHz) <= toleranceHz, -1);
+                var leader = kept.FirstOrDefault(t => SpinDistanceHz(problem, layout, current[s], current[t]) <= toleranceHz, -1);
                 if (leader >= 0) follows[s] = leader; else kept.Add(s);
             }
             running = kept;
@@ -167,16 +167,19 @@ public static class SpectrumFitter
     /// </summary>
     internal const double JoinFraction = 0.01;
 
-    /// <summary>Largest difference in Hz between two free vectors over the shifts and couplings.</summary>
-    private static double SpinDistanceHz(ParameterLayout layout, double[] a, double[] b, double observeMHz)
+    /// <summary>Largest difference in Hz (at the first trace's field) between two free vectors over the shifts and couplings.</summary>
+    private static double SpinDistanceHz(SpectrumFitProblem problem, ParameterLayout layout, double[] a, double[] b)
     {
+        var observed = problem.System.Observed;
         var largest = 0.0;
         for (var f = 0; f < layout.FreeCount; f++)
         {
             var p = layout.Parameters[layout.FreeRepresentatives[f]];
             var hz = p.Kind switch
             {
-                ParameterKind.ShiftPpm => Math.Abs(a[f] - b[f]) * observeMHz,
+                // A shift in ppm is Hz at its own isotope's frequency: the observe frequency scaled by the ratio.
+                ParameterKind.ShiftPpm => Math.Abs(a[f] - b[f]) * problem.Data[0].ObserveMHz
+                    * problem.System.Nuclei[p.Index].Isotope.FrequencyRatioPercent / observed.FrequencyRatioPercent,
                 ParameterKind.JHz => Math.Abs(a[f] - b[f]),
                 _ => 0,
             };
