@@ -1,3 +1,4 @@
+// Method: first-order (Rayleigh-Schrödinger) perturbation theory of the eigenstates; frequencies by the Hellmann-Feynman theorem (R. P. Feynman, Phys. Rev. 56, 340, 1939).
 namespace SpinSim.Core.Engine;
 
 /// <summary>
