@@ -104,12 +104,18 @@ public class BootstrapTests
     }
 
     [Fact]
-    public void ResamplingKeepsBlocksOfNeighbours()
+    public void ResamplingKeepsBlocksOfNeighboursWithinEachRegion()
     {
+        // Two regions of fitted points with a gap between them (exact invariants of the resampling).
+        var ppm = Enumerable.Range(0, 60).Select(i => 1.0 + 0.001 * i).Concat(Enumerable.Range(0, 40).Select(i => 3.0 + 0.001 * i)).ToArray();
+        var segments = SpectrumBootstrap.Segments(ppm);
+        Assert.Equal([(0, 60), (60, 100)], segments);
         var series = Enumerable.Range(0, 100).Select(i => (double)i).ToArray();
-        var resampled = SpectrumBootstrap.Resample(series, 10, new Random(5));
+        var resampled = SpectrumBootstrap.Resample(series, segments, 10, new Random(5));
         Assert.Equal(100, resampled.Length);
         for (var b = 0; b < 100; b += 10)
             for (var k = 1; k < 10; k++) Assert.Equal(resampled[b] + k, resampled[b + k]);
+        Assert.All(resampled.Take(60), v => Assert.InRange(v, 0, 59));
+        Assert.All(resampled.Skip(60), v => Assert.InRange(v, 60, 99));
     }
 }

@@ -53,7 +53,7 @@ public static class SpectrumBootstrap
             var data = problem.Data.Select((d, k) =>
             {
                 var t = fit.Traces[k];
-                var resampled = Resample(residuals[k], block, random);
+                var resampled = Resample(residuals[k], Segments(t.Measured.ShiftPpm), block, random);
                 // residual = model - data, so data* = model - residual*.
                 var y = t.Model.Select((m, i) => m - resampled[i]).ToArray();
                 var trace = new SpectrumTrace(t.Measured.ShiftPpm.ToArray(), y, t.Measured.ObserveMHz, t.Measured.Nucleus,
@@ -96,16 +96,42 @@ public static class SpectrumBootstrap
         return Math.Clamp((int)Math.Ceiling(BlocksPerCorrelationLength * lag), 1, Math.Max(1, n / 10));
     }
 
-    /// <summary>A series of the same length made of blocks of <paramref name="block"/> consecutive values starting at random points.</summary>
-    internal static double[] Resample(double[] series, int block, Random random)
+    /// <summary>
+    /// The contiguous runs of fitted points, as [start, end) index pairs: a new run begins where the step to the next
+    /// point exceeds 1.5 times the median step (a gap between regions or an excluded interval).
+    /// </summary>
+    internal static IReadOnlyList<(int Start, int End)> Segments(IReadOnlyList<double> ppm)
     {
-        var n = series.Length;
-        var result = new double[n];
-        var filled = 0;
-        while (filled < n)
+        var n = ppm.Count;
+        if (n < 3) return [(0, n)];
+        var steps = Enumerable.Range(1, n - 1).Select(i => Math.Abs(ppm[i] - ppm[i - 1])).ToArray();
+        var median = steps.Order().ElementAt(steps.Length / 2);
+        var segments = new List<(int, int)>();
+        var start = 0;
+        for (var i = 1; i < n; i++)
+            if (steps[i - 1] > 1.5 * median) { segments.Add((start, i)); start = i; }
+        segments.Add((start, n));
+        return segments;
+    }
+
+    /// <summary>
+    /// A series of the same length in which each contiguous run is refilled with blocks of <paramref name="block"/>
+    /// consecutive values (shorter where the run is) drawn from random places in the same run, so that no block spans a
+    /// gap and every region keeps its own noise.
+    /// </summary>
+    internal static double[] Resample(double[] series, IReadOnlyList<(int Start, int End)> segments, int block, Random random)
+    {
+        var result = new double[series.Length];
+        foreach (var (start, end) in segments)
         {
-            var start = random.Next(0, Math.Max(1, n - block + 1));
-            for (var k = 0; k < block && filled < n; k++) result[filled++] = series[Math.Min(n - 1, start + k)];
+            var length = end - start;
+            var size = Math.Min(block, length);
+            var filled = start;
+            while (filled < end)
+            {
+                var from = start + random.Next(0, length - size + 1);
+                for (var k = 0; k < size && filled < end; k++) result[filled++] = series[from + k];
+            }
         }
         return result;
     }
