@@ -97,8 +97,8 @@ public static class SpectrumEngine
         var blocks = sizes.Sum(s => s.Count);
 
         var chunks = raw.SelectMany(r => r).ToList();
-        var (lines, origin) = Merge(chunks, pools, system.Nuclei.Count, options.MergeToleranceHz, observeMHz);
-        var derivatives = parameters is null ? null : MergeDerivatives(chunks, parameters, options.MergeToleranceHz);
+        var (lines, origin, dIntensity, dMoment) = Merge(chunks, pools, system.Nuclei.Count, options.MergeToleranceHz, observeMHz, parameters?.Count ?? 0);
+        var derivatives = parameters is null ? null : new LineDerivatives(parameters, dIntensity, dMoment);
         var pooled = pools.Count;
         var notes = plan.IsExact ? new List<string> { "exact: the whole system was diagonalised as one" } : new List<string>
         {
@@ -123,60 +123,6 @@ public static class SpectrumEngine
             if (s.IsShift) return new Generator(p, -1);
             return of.TryGetValue(s.EntryB, out var q) ? new Generator(p, q) : new Generator(-1, -1);
         }).ToArray();
-    }
-
-    /// <summary>
-    /// The derivatives of the merged lines, in the order <see cref="MergeExact"/> lists them: for a run of merged lines
-    /// I = sum I_k and I ν = sum I_k ν_k, so dI = sum dI_k and I dν = sum (dI_k ν_k + I_k dν_k) - ν dI.
-    /// </summary>
-    private static LineDerivatives MergeDerivatives(IReadOnlyList<RawLines> chunks, IReadOnlyList<SpinParameter> parameters, double toleranceHz)
-    {
-        var count = chunks.Sum(c => c.Count);
-        var g = parameters.Count;
-        var frequency = new double[count];
-        var chunkOf = new int[count];
-        var indexIn = new int[count];
-        var at = 0;
-        for (var c = 0; c < chunks.Count; c++)
-        {
-            chunks[c].FrequencyHz.CopyTo(frequency, at);
-            for (var k = 0; k < chunks[c].Count; k++) { chunkOf[at + k] = c; indexIn[at + k] = k; }
-            at += chunks[c].Count;
-        }
-        var order = Enumerable.Range(0, count).ToArray();
-        Array.Sort(frequency, order);
-        var dIntensity = new List<double>();
-        var dMoment = new List<double>();
-        var sumDI = new double[g];
-        var sumDM = new double[g];
-        var i = 0;
-        while (i < count)
-        {
-            Array.Clear(sumDI);
-            Array.Clear(sumDM);
-            double sumI = 0, sumF = 0;
-            do
-            {
-                var chunk = chunks[chunkOf[order[i]]];
-                var k = indexIn[order[i]];
-                sumI += chunk.Intensity[k];
-                sumF += chunk.Intensity[k] * frequency[i];
-                for (var p = 0; p < g; p++)
-                {
-                    var di = chunk.DIntensity[k * g + p];
-                    sumDI[p] += di;
-                    sumDM[p] += di * frequency[i] + chunk.DMoment[k * g + p];
-                }
-                i++;
-            } while (i < count && frequency[i] - frequency[i - 1] <= toleranceHz);
-            var f = sumF / sumI;
-            for (var p = 0; p < g; p++)
-            {
-                dIntensity.Add(sumDI[p]);
-                dMoment.Add(sumDM[p] - f * sumDI[p]);
-            }
-        }
-        return new LineDerivatives(parameters, dIntensity.ToArray(), dMoment.ToArray());
     }
 
     /// <summary>Tr(F+ F-) = N 2^(N-1) for N observed spin-1/2 nuclei, times 2^M for M unobserved ones.</summary>
@@ -230,12 +176,16 @@ public static class SpectrumEngine
     /// <summary>
     /// Sorts all raw lines by frequency and merges runs closer than <paramref name="toleranceHz"/> into one line at their
     /// intensity-weighted mean frequency, with intensity-weighted origin; the pools of weak lines (one line per bin) are
-    /// listed among them by frequency.
+    /// listed among them by frequency. With <paramref name="derivatives"/> &gt; 0 the raw lines carry that many derivatives
+    /// each, merged alongside (pools carry none, so there must be none then): for a run of merged lines I = sum I_k and
+    /// I ν = sum I_k ν_k, so dI = sum dI_k and I dν = sum (dI_k ν_k + I_k dν_k) - ν dI.
     /// </summary>
-    internal static (Line[] Lines, double[] Origin) Merge(IReadOnlyList<RawLines> chunks, LinePools pools, int entryCount, double toleranceHz, double observeMHz)
+    internal static (Line[] Lines, double[] Origin, double[] DIntensity, double[] DMoment) Merge(IReadOnlyList<RawLines> chunks, LinePools pools,
+        int entryCount, double toleranceHz, double observeMHz, int derivatives = 0)
     {
-        var (lines, origin) = MergeExact(chunks, entryCount, toleranceHz, observeMHz);
-        if (pools.Count == 0) return (lines, origin);
+        var (lines, origin, dIntensity, dMoment) = MergeExact(chunks, entryCount, toleranceHz, observeMHz, derivatives);
+        if (pools.Count == 0) return (lines, origin, dIntensity, dMoment);
+        if (derivatives > 0) throw new InvalidOperationException("pooled weak lines have no derivatives");
         var (weak, weakOrigin) = pools.ToLines(observeMHz);
 
         // Both lists are sorted by frequency: interleave them.
@@ -249,10 +199,11 @@ public static class SpectrumEngine
             allLines[k] = from[index];
             Array.Copy(fromOrigin, (long)index * entryCount, allOrigin, (long)k * entryCount, entryCount);
         }
-        return (allLines, allOrigin);
+        return (allLines, allOrigin, [], []);
     }
 
-    private static (Line[] Lines, double[] Origin) MergeExact(IReadOnlyList<RawLines> chunks, int entryCount, double toleranceHz, double observeMHz)
+    private static (Line[] Lines, double[] Origin, double[] DIntensity, double[] DMoment) MergeExact(IReadOnlyList<RawLines> chunks, int entryCount,
+        double toleranceHz, double observeMHz, int derivatives)
     {
         var count = chunks.Sum(c => c.Count);
         var frequency = new double[count];
@@ -270,12 +221,18 @@ public static class SpectrumEngine
 
         var lines = new List<Line>();
         var origin = new List<double>();
+        var dIntensity = new List<double>();
+        var dMoment = new List<double>();
         var row = new double[entryCount];
+        var sumDI = new double[derivatives];
+        var sumDM = new double[derivatives];
         var i = 0;
         while (i < count)
         {
             double sumI = 0, sumF = 0;
             Array.Clear(row);
+            Array.Clear(sumDI);
+            Array.Clear(sumDM);
             var first = i;
             do
             {
@@ -285,12 +242,23 @@ public static class SpectrumEngine
                 sumI += intensity;
                 sumF += intensity * frequency[i];
                 chunk.AddOrigin(k, intensity, row);
+                for (var p = 0; p < derivatives; p++)
+                {
+                    var di = chunk.DIntensity[k * derivatives + p];
+                    sumDI[p] += di;
+                    sumDM[p] += di * frequency[i] + chunk.DMoment[k * derivatives + p];
+                }
                 i++;
             } while (i < count && frequency[i] - frequency[i - 1] <= toleranceHz);
             var f = i - first == 1 ? frequency[first] : sumF / sumI;
             lines.Add(new Line(f, f / observeMHz, sumI));
             foreach (var w in row) origin.Add(w / sumI);
+            for (var p = 0; p < derivatives; p++)
+            {
+                dIntensity.Add(sumDI[p]);
+                dMoment.Add(sumDM[p] - f * sumDI[p]);
+            }
         }
-        return (lines.ToArray(), origin.ToArray());
+        return (lines.ToArray(), origin.ToArray(), dIntensity.ToArray(), dMoment.ToArray());
     }
 }
