@@ -389,23 +389,32 @@ internal sealed class SubspectrumSolver
 
             // Flip-flop terms J/2 (F+_p F-_q + F-_p F+_q) connect states of the same block.
             for (var p = 0; p < count; p++)
-            {
-                var fp = _particles[p].TwiceF / 2.0;
-                if (m[p] >= fp) continue;
                 for (var q = 0; q < count; q++)
                 {
                     if (q == p || _jHz[p, q] == 0 || _particles[q].IsotopeGroup != _particles[p].IsotopeGroup) continue;
-                    var fq = _particles[q].TwiceF / 2.0;
-                    if (m[q] <= -fq) continue;
-                    var target = code + _strides[p] - _strides[q];
+                    if (!RaiseLower(code, p, q, m[p], m[q], 0.5 * _jHz[p, q], out var target, out var element)) continue;
                     var j = local[target];
                     if (j < i) continue; // fill the lower triangle only: row j >= column i
-                    h[j + (long)i * n] = 0.5 * _jHz[p, q]
-                        * CompositeSpins.LadderElement(fp, m[p], +1) * CompositeSpins.LadderElement(fq, m[q], -1);
+                    h[j + (long)i * n] = element;
                 }
-            }
         }
         return h;
+    }
+
+    /// <summary>
+    /// factor x F+_x F-_y applied to product state <paramref name="code"/> (with M values <paramref name="mx"/>,
+    /// <paramref name="my"/> of the two particles): the state with x raised and y lowered, and the matrix element;
+    /// false when x is at its top or y at its bottom.
+    /// </summary>
+    private bool RaiseLower(int code, int x, int y, double mx, double my, double factor, out int target, out double element)
+    {
+        var fx = _particles[x].TwiceF / 2.0;
+        var fy = _particles[y].TwiceF / 2.0;
+        (target, element) = (-1, 0);
+        if (mx >= fx || my <= -fy) return false;
+        target = code + _strides[x] - _strides[y];
+        element = factor * CompositeSpins.LadderElement(fx, mx, +1) * CompositeSpins.LadderElement(fy, my, -1);
+        return true;
     }
 
     private RawLines Transitions(int[] upperCodes, int[] lowerCodes, double[] vUpper, double[] vLower,
@@ -532,12 +541,8 @@ internal sealed class SubspectrumSolver
             // (F+_x F-_y + F-_x F+_y) / 2 takes state i to the state with x raised and y lowered, for (x, y) both ways.
             foreach (var (x, y) in new[] { (g.P, g.Q), (g.Q, g.P) })
             {
-                var fx = _particles[x].TwiceF / 2.0;
-                var fy = _particles[y].TwiceF / 2.0;
-                var (mx, my) = (M(code, x), M(code, y));
-                if (mx >= fx || my <= -fy) continue;
-                var j = local[code + _strides[x] - _strides[y]];
-                var element = 0.5 * CompositeSpins.LadderElement(fx, mx, +1) * CompositeSpins.LadderElement(fy, my, -1);
+                if (!RaiseLower(code, x, y, M(code, x), M(code, y), 0.5, out var target, out var element)) continue;
+                var j = local[target];
                 for (var a = 0; a < n; a++) w[j + (long)a * n] += element * u[i + (long)a * n];
             }
         }
