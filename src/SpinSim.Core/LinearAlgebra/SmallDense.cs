@@ -4,9 +4,9 @@ using System.Runtime.InteropServices;
 namespace SpinSim.Core.LinearAlgebra;
 
 /// <summary>
-/// Plain single-threaded kernels for the many small matrices of a split or composite system: at a few dozen rows a
-/// library call's set-up (and MathNet's managed provider hands every product to its thread pool) costs more than
-/// the arithmetic.
+/// Plain single-threaded kernels for the many small matrices of a split or composite system, and for short vectors:
+/// at a few dozen rows a library call's set-up (and MathNet's managed provider hands every product to its thread pool)
+/// costs more than the arithmetic.
 /// </summary>
 internal static class SmallDense
 {
@@ -21,6 +21,22 @@ internal static class SmallDense
             var bj = b.AsSpan(j * k, k);
             for (var i = 0; i < m; i++) c[i + (long)j * m] = Dot(a.AsSpan(i * k, k), bj);
         }
+    }
+
+    /// <summary>y += a x + b z over spans of equal length, vectorised.</summary>
+    public static void AddScaled(Span<double> y, double a, ReadOnlySpan<double> x, double b, ReadOnlySpan<double> z)
+    {
+        var i = 0;
+        if (Vector.IsHardwareAccelerated && y.Length >= Vector<double>.Count)
+        {
+            var vy = MemoryMarshal.Cast<double, Vector<double>>(y);
+            var vx = MemoryMarshal.Cast<double, Vector<double>>(x);
+            var vz = MemoryMarshal.Cast<double, Vector<double>>(z);
+            var (va, vb) = (new Vector<double>(a), new Vector<double>(b));
+            for (var k = 0; k < vy.Length; k++) vy[k] += va * vx[k] + vb * vz[k];
+            i = vy.Length * Vector<double>.Count;
+        }
+        for (; i < y.Length; i++) y[i] += a * x[i] + b * z[i];
     }
 
     /// <summary>Sum of x_i y_i over two spans of equal length.</summary>

@@ -1,5 +1,6 @@
 using System.Numerics;
 using SpinSim.Core.Engine;
+using SpinSim.Core.LinearAlgebra;
 using SpinSim.Core.Model;
 using SpinSim.Core.Spectrum;
 
@@ -217,24 +218,11 @@ internal sealed class SpectralModel : ILeastSquaresModel
         }
         catch (SpinSystemException) { return false; }
         var data = _data[d];
-        var (scale, offsetHz, phaseDeg, globalWidth) = (1.0, 0.0, 0.0, double.NaN);
-        int widthColumn = -1, offsetColumn = -1, phaseColumn = -1;
-        for (var i = 0; i < full.Length; i++)
-        {
-            var p = _layout.Parameters[i];
-            if (p.Dataset >= 0 && p.Dataset != d) continue;
-            var f = _layout.FreeIndexOf(i);
-            var free = f >= 0 && !IsHeld(f) ? f : -1;
-            switch (p.Kind)
-            {
-                case ParameterKind.Scale: scale = full[i]; break;
-                case ParameterKind.OffsetHz: offsetHz = full[i]; offsetColumn = free; break;
-                case ParameterKind.PhaseDeg: phaseDeg = full[i]; phaseColumn = free; break;
-                case ParameterKind.LinewidthHz when p.Index < 0: globalWidth = full[i]; widthColumn = free; break;
-            }
-        }
+        var values = Values(full, d);
+        var (offsetHz, globalWidth) = (values.OffsetHz, values.GlobalWidth);
         if (!(globalWidth > 0)) return false;
-        var areaScale = scale / _singleNucleus / data.Normalisation;
+        var (widthColumn, offsetColumn, phaseColumn) = (Column(values.WidthIndex), Column(values.OffsetIndex), Column(values.PhaseIndex));
+        var areaScale = values.Scale / _singleNucleus / data.Normalisation;
         var count = _derivatives.Length;
         // One column of the fitted points per spin derivative, then width, offset and phase (kept between calls: at
         // full resolution it is megabytes, and the Jacobian is asked for at every accepted step).
@@ -248,32 +236,20 @@ internal sealed class SpectralModel : ILeastSquaresModel
         // Only the derivatives of free, unheld values are needed.
         var wanted = new bool[count];
         foreach (var i in _spinParameters)
-            if (_layout.FreeIndexOf(i) is var f && f >= 0 && !IsHeld(f)) wanted[_derivativeOf[i]] = true;
+            if (Column(i) >= 0) wanted[_derivativeOf[i]] = true;
         // A line whose intensity and moment move by less than this (per Hz of the parameter) is left out of a column:
         // 1e-9 of one nucleus's line, far below anything the minimiser or the covariance can see.
         var negligible = 1e-9 * _singleNucleus;
-        var profile = new Profile(_shape, globalWidth, _broadeningHz, phaseDeg, widthColumn >= 0, phaseColumn >= 0);
+        var profile = new Profile(_shape, globalWidth, _broadeningHz, values.PhaseDeg, widthColumn >= 0, phaseColumn >= 0);
         var others = widthColumn >= 0 || offsetColumn >= 0 || phaseColumn >= 0;
         for (var l = 0; l < lines.Lines.Count; l++)
         {
-            var intensity = lines.Lines[l].Intensity;
-            var relative = intensity / _singleNucleus;
-            if (relative < NegligibleIntensity) continue;
-            // The fade below 10 x NegligibleIntensity: I_eff = I s(I), dI_eff/dI = s + I s'(I).
-            double fade = 1, fadeSlope = 0;
-            if (relative < 10 * NegligibleIntensity)
-            {
-                var t = (10 * NegligibleIntensity - relative) / (9 * NegligibleIntensity);
-                fade = 1 - SmoothStep(t);
-                fadeSlope = 6 * t * (1 - t) / (9 * NegligibleIntensity * _singleNucleus);
-            }
-            var effective = intensity * fade;
-            var dEffective = fade + intensity * fadeSlope;
+            var (effective, fade, dEffective) = Faded(lines.Lines[l].Intensity);
+            if (effective == 0) continue;
             // Window half-width R = cutoff(I_eff) (L + G), with cutoff = 100 sqrt(I_eff / single) between its limits.
             var share = effective / _singleNucleus;
-            var rawCutoff = CutoffWidths * Math.Sqrt(Math.Min(1, share));
-            var cutoff = Math.Max(MinimumCutoffWidths, rawCutoff);
-            var dReach = rawCutoff > MinimumCutoffWidths && share < 1 ? profile.Total * CutoffWidths * 0.5 / Math.Sqrt(share) / _singleNucleus : 0;
+            var cutoff = CutoffFor(effective);
+            var dReach = UncappedCutoff(effective) > MinimumCutoffWidths && share < 1 ? profile.Total * CutoffWidths * 0.5 / Math.Sqrt(share) / _singleNucleus : 0;
             var di = lines.Derivatives!.IntensityOf(l);
             var dm = lines.Derivatives.MomentOf(l);
             var activeCount = 0;
@@ -294,8 +270,8 @@ internal sealed class SpectralModel : ILeastSquaresModel
         var row0 = _offsets[d];
         foreach (var i in _spinParameters)
         {
-            var f = _layout.FreeIndexOf(i);
-            if (f < 0 || IsHeld(f)) continue;
+            var f = Column(i);
+            if (f < 0) continue;
             var p = _layout.Parameters[i];
             var factor = p.Kind == ParameterKind.ShiftPpm ? system.Nuclei[p.Index].Isotope.ObserveMHz(system.Field) : 1.0;
             var g = _derivativeOf[i];
@@ -306,6 +282,9 @@ internal sealed class SpectralModel : ILeastSquaresModel
                 for (var k = 0; k < data.Count; k++) jacobian[row0 + k, column] += columns[slot * data.Count + k];
         return true;
     }
+
+    /// <summary>The Jacobian column of full parameter <paramref name="index"/>: its free index, or -1 when it is absent, fixed or held.</summary>
+    private int Column(int index) => index >= 0 && _layout.FreeIndexOf(index) is var f && f >= 0 && !IsHeld(f) ? f : -1;
 
     /// <summary>The profile of every line of one evaluation: components, phase, and what is differentiated.</summary>
     private sealed class Profile
@@ -411,28 +390,12 @@ internal sealed class SpectralModel : ILeastSquaresModel
         for (var n = 0; n < active.Length; n++)
         {
             var column = columns.AsSpan(active[n] * points + first, length);
-            AddScaled(column, a[n], v, b[n], vx);
-            if (tapered && c[n] != 0) AddScaled(column, c[n], vr, 0, vr);
+            SmallDense.AddScaled(column, a[n], v, b[n], vx);
+            if (tapered && c[n] != 0) SmallDense.AddScaled(column, c[n], vr, 0, vr);
         }
-        if (q.Width) AddScaled(columns.AsSpan(slots * points + first, length), e, vw, 0, vw);
-        AddScaled(columns.AsSpan((slots + 1) * points + first, length), -e, vx, 0, vx);
-        if (q.Phase) AddScaled(columns.AsSpan((slots + 2) * points + first, length), e, vp, 0, vp);
-    }
-
-    /// <summary>y += a x + b z, vectorised.</summary>
-    private static void AddScaled(Span<double> y, double a, ReadOnlySpan<double> x, double b, ReadOnlySpan<double> z)
-    {
-        var i = 0;
-        if (Vector.IsHardwareAccelerated && y.Length >= Vector<double>.Count)
-        {
-            var vy = System.Runtime.InteropServices.MemoryMarshal.Cast<double, Vector<double>>(y);
-            var vx = System.Runtime.InteropServices.MemoryMarshal.Cast<double, Vector<double>>(x);
-            var vz = System.Runtime.InteropServices.MemoryMarshal.Cast<double, Vector<double>>(z);
-            var (va, vb) = (new Vector<double>(a), new Vector<double>(b));
-            for (var k = 0; k < vy.Length; k++) vy[k] += va * vx[k] + vb * vz[k];
-            i = vy.Length * Vector<double>.Count;
-        }
-        for (; i < y.Length; i++) y[i] += a * x[i] + b * z[i];
+        if (q.Width) SmallDense.AddScaled(columns.AsSpan(slots * points + first, length), e, vw, 0, vw);
+        SmallDense.AddScaled(columns.AsSpan((slots + 1) * points + first, length), -e, vx, 0, vx);
+        if (q.Phase) SmallDense.AddScaled(columns.AsSpan((slots + 2) * points + first, length), e, vp, 0, vp);
     }
 
     /// <summary>Scratch profiles of one line, reused from line to line.</summary>
@@ -455,10 +418,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
     private double[] Baseline(double[] full, int d)
     {
         var b = new double[_data[d].Count];
-        var terms = Enumerable.Range(0, full.Length)
-            .Where(k => _layout.Parameters[k].Kind == ParameterKind.Baseline && _layout.Parameters[k].Dataset == d)
-            .Select(k => (_layout.Parameters[k].Index, full[k])).ToList();
-        AddBaseline(_data[d], terms, b);
+        AddBaseline(_data[d], Values(full, d).Baseline, b);
         return b;
     }
 
@@ -493,10 +453,33 @@ internal sealed class SpectralModel : ILeastSquaresModel
         try { lines = LinesFor(full, d); }
         catch (SpinSystemException) { return false; }
         var data = _data[d];
+        var v = Values(full, d);
+        var areaScale = v.Scale / _singleNucleus / data.Normalisation;
+        var cos = Math.Cos(v.PhaseDeg * Math.PI / 180);
+        var sin = Math.Sin(v.PhaseDeg * Math.PI / 180);
+        y.Clear();
+        for (var l = 0; l < lines.Lines.Count; l++)
+        {
+            var width = v.PerEntryWidth is { } perEntry ? lines.WeightedByOrigin(l, perEntry) : v.GlobalWidth;
+            if (!(width > 0)) return false;
+            var (effective, _, _) = Faded(lines.Lines[l].Intensity);
+            if (effective == 0) continue;
+            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + v.OffsetHz, effective * areaScale, width, CutoffFor(effective), cos, sin);
+        }
+        AddBaseline(data, v.Baseline, y);
+        return true;
+    }
+
+    /// <summary>
+    /// The values that shape trace <paramref name="d"/> at <paramref name="full"/>, with the full index each width,
+    /// offset and phase came from (-1 when the fit has none). Widths per entry default to the common width (or 1 Hz).
+    /// </summary>
+    private TraceValues Values(double[] full, int d)
+    {
         double scale = 1, offsetHz = 0, phaseDeg = 0, globalWidth = double.NaN;
+        int widthIndex = -1, offsetIndex = -1, phaseIndex = -1;
         var baseline = new List<(int Order, double Value)>();
-        var perEntryWidth = new double[_system.Nuclei.Count];
-        var hasPerEntry = false;
+        double[]? perEntryWidth = null;
         for (var i = 0; i < full.Length; i++)
         {
             var p = _layout.Parameters[i];
@@ -504,35 +487,40 @@ internal sealed class SpectralModel : ILeastSquaresModel
             switch (p.Kind)
             {
                 case ParameterKind.Scale: scale = full[i]; break;
-                case ParameterKind.OffsetHz: offsetHz = full[i]; break;
-                case ParameterKind.PhaseDeg: phaseDeg = full[i]; break;
+                case ParameterKind.OffsetHz: (offsetHz, offsetIndex) = (full[i], i); break;
+                case ParameterKind.PhaseDeg: (phaseDeg, phaseIndex) = (full[i], i); break;
                 case ParameterKind.Baseline: baseline.Add((p.Index, full[i])); break;
-                case ParameterKind.LinewidthHz when p.Index < 0: globalWidth = full[i]; break;
-                case ParameterKind.LinewidthHz: perEntryWidth[p.Index] = full[i]; hasPerEntry = true; break;
+                case ParameterKind.LinewidthHz when p.Index < 0: (globalWidth, widthIndex) = (full[i], i); break;
+                case ParameterKind.LinewidthHz: (perEntryWidth ??= new double[_system.Nuclei.Count])[p.Index] = full[i]; break;
             }
         }
-        if (hasPerEntry)
+        if (perEntryWidth is not null)
             for (var e = 0; e < perEntryWidth.Length; e++)
                 if (perEntryWidth[e] == 0) perEntryWidth[e] = double.IsNaN(globalWidth) ? 1.0 : globalWidth;
-
-        var areaScale = scale / _singleNucleus / data.Normalisation;
-        var cos = Math.Cos(phaseDeg * Math.PI / 180);
-        var sin = Math.Sin(phaseDeg * Math.PI / 180);
-        y.Clear();
-        for (var l = 0; l < lines.Lines.Count; l++)
-        {
-            var width = hasPerEntry ? lines.WeightedByOrigin(l, perEntryWidth) : globalWidth;
-            if (!(width > 0)) return false;
-            var intensity = lines.Lines[l].Intensity;
-            var relative = intensity / _singleNucleus;
-            if (relative < NegligibleIntensity) continue;
-            if (relative < 10 * NegligibleIntensity) intensity *= 1 - SmoothStep((10 * NegligibleIntensity - relative) / (9 * NegligibleIntensity));
-            var cutoff = Math.Max(MinimumCutoffWidths, CutoffWidths * Math.Sqrt(Math.Min(1, intensity / _singleNucleus)));
-            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + offsetHz, intensity * areaScale, width, cutoff, cos, sin);
-        }
-        AddBaseline(data, baseline, y);
-        return true;
+        return new TraceValues(scale, offsetHz, phaseDeg, globalWidth, baseline, perEntryWidth, widthIndex, offsetIndex, phaseIndex);
     }
+
+    private sealed record TraceValues(double Scale, double OffsetHz, double PhaseDeg, double GlobalWidth, List<(int Order, double Value)> Baseline,
+        double[]? PerEntryWidth, int WidthIndex, int OffsetIndex, int PhaseIndex);
+
+    /// <summary>
+    /// The intensity a line is drawn with: none below <see cref="NegligibleIntensity"/> of one nucleus, faded in by a
+    /// smooth step s up to ten times that, in full above; with s and dI_eff/dI = s + I s'(I) for the derivatives.
+    /// </summary>
+    private (double Effective, double Fade, double Slope) Faded(double intensity)
+    {
+        var relative = intensity / _singleNucleus;
+        if (relative < NegligibleIntensity) return (0, 0, 0);
+        if (relative >= 10 * NegligibleIntensity) return (intensity, 1, 1);
+        var t = (10 * NegligibleIntensity - relative) / (9 * NegligibleIntensity);
+        var fade = 1 - SmoothStep(t);
+        return (intensity * fade, fade, fade + intensity * 6 * t * (1 - t) / (9 * NegligibleIntensity * _singleNucleus));
+    }
+
+    /// <summary>Half-width of a line's window in linewidths, for a line drawn with intensity <paramref name="effective"/> (see <see cref="CutoffWidths"/>).</summary>
+    private double CutoffFor(double effective) => Math.Max(MinimumCutoffWidths, UncappedCutoff(effective));
+
+    private double UncappedCutoff(double effective) => CutoffWidths * Math.Sqrt(Math.Min(1, effective / _singleNucleus));
 
     private void AddLine(double[] hz, Span<double> y, double centreHz, double area, double widthHz, double cutoffWidths, double cos, double sin)
     {
