@@ -177,19 +177,19 @@ public static class FitCommand
 
     internal static IReadOnlyList<ParameterRow> Rows(SpectrumFitResult result) =>
         // A tied group is shown once, on the row of its first member.
-        result.Parameters.Where((p, i) => p.TiedWith is null || !result.Parameters.Take(i).Any(q => p.TiedWith.Split(", ").Contains(q.Name)))
-            .Select(p => new ParameterRow(p.TiedWith is null ? p.Name : $"{p.Name} (= {p.TiedWith})", Format(p.Value, p.Kind),
-                StdErrorText(result, p), p.Unit)).ToList();
+        result.Parameters.Select((p, i) => (p, i))
+            .Where(t => t.p.TiedWith is null || !result.Parameters.Take(t.i).Any(q => t.p.TiedWith.Split(", ").Contains(q.Name)))
+            .Select(t => new ParameterRow(t.p.TiedWith is null ? t.p.Name : $"{t.p.Name} (= {t.p.TiedWith})", Format(t.p.Value, t.p.Kind),
+                StdErrorText(t.p, result.Bootstrap?.StdErrors[t.i]), t.p.Unit)).ToList();
 
     private static string ErrorHeading(SpectrumFitResult result) => result.Bootstrap is null ? "std. error" : "std. error (bootstrap)";
 
-    private static string StdErrorText(SpectrumFitResult result, FittedParameter p)
+    /// <summary>The covariance error, and the bootstrap error in brackets when there is one.</summary>
+    private static string StdErrorText(FittedParameter p, double? bootstrap)
     {
         if (!p.Varied) return "fixed";
         var text = double.IsFinite(p.StdError) ? p.StdError.ToString("G2", CultureInfo.InvariantCulture) : "undetermined";
-        var i = result.Parameters.ToList().IndexOf(p);
-        if (result.Bootstrap is { } b && double.IsFinite(b.StdErrors[i]))
-            text += $" ({b.StdErrors[i].ToString("G2", CultureInfo.InvariantCulture)})";
+        if (bootstrap is { } b && double.IsFinite(b)) text += $" ({b.ToString("G2", CultureInfo.InvariantCulture)})";
         return text;
     }
 

@@ -1,3 +1,4 @@
+using MathNet.Numerics.Statistics;
 using SpinSim.Core.Fitting.Spectral;
 using SpinSim.Core.Spectrum;
 using SpinSim.Core.Traces;
@@ -43,11 +44,7 @@ public class BootstrapTests
     private static double[] ScatterOverDraws(double sigmaPoints)
     {
         var values = Enumerable.Range(0, Draws).AsParallel().Select(s => FitDraw(sigmaPoints, 1000 + s).Fit.Parameters.Select(p => p.Value).ToArray()).ToArray();
-        return Enumerable.Range(0, values[0].Length).Select(i =>
-        {
-            var mean = values.Average(v => v[i]);
-            return Math.Sqrt(values.Sum(v => (v[i] - mean) * (v[i] - mean)) / (values.Length - 1));
-        }).ToArray();
+        return Enumerable.Range(0, values[0].Length).Select(i => values.Select(v => v[i]).StandardDeviation()).ToArray();
     }
 
     /// <summary>

@@ -1,4 +1,5 @@
 // Method: H. R. Künsch, "The jackknife and the bootstrap for general stationary observations", Annals of Statistics 17, 1217-1241 (1989): the moving-block bootstrap.
+using MathNet.Numerics.Statistics;
 using SpinSim.Core.Engine;
 using SpinSim.Core.Traces;
 
@@ -68,12 +69,8 @@ public static class SpectrumBootstrap
         });
 
         var used = Enumerable.Range(0, options.Replicates).Where(r => converged[r]).ToArray();
-        var errors = fit.Parameters.Select((p, i) =>
-        {
-            if (!p.Varied || used.Length < 2) return double.NaN;
-            var mean = used.Average(r => estimates[r][i]);
-            return Math.Sqrt(used.Sum(r => (estimates[r][i] - mean) * (estimates[r][i] - mean)) / (used.Length - 1));
-        }).ToArray();
+        // Sample standard deviation (n - 1) over the converged replicates.
+        var errors = fit.Parameters.Select((p, i) => !p.Varied || used.Length < 2 ? double.NaN : used.Select(r => estimates[r][i]).StandardDeviation()).ToArray();
         return new BootstrapResult(options.Replicates, used.Length, block, errors);
     }
 
