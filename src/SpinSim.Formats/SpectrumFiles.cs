@@ -30,4 +30,17 @@ public static class SpectrumFiles
         throw new SpectrumFileException(path, null,
             $"unknown file type '{extension}': expected JCAMP-DX ({string.Join(", ", JcampExtensions)}) or delimited text ({string.Join(", ", DelimitedExtensions)}); rename the file or convert it");
     }
+
+    /// <summary>The whole text of a spectrum file; any failure to open it becomes a <see cref="SpectrumFileException"/> naming the file.</summary>
+    internal static string ReadText(string path)
+    {
+        try
+        {
+            return File.ReadAllText(path);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or ArgumentException or NotSupportedException or System.Security.SecurityException)
+        {
+            throw new SpectrumFileException(path, null, $"cannot open the file: {e.Message}", e);
+        }
+    }
 }

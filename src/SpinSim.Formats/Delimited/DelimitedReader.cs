@@ -14,15 +14,7 @@ public static class DelimitedReader
     public static SpectrumTrace Read(string path, DelimitedOptions? options = null)
     {
         ArgumentNullException.ThrowIfNull(path);
-        string text;
-        try
-        {
-            text = File.ReadAllText(path);
-        }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException or ArgumentException or NotSupportedException or System.Security.SecurityException)
-        {
-            throw new SpectrumFileException(path, null, $"cannot open the file: {e.Message}", e);
-        }
+        var text = SpectrumFiles.ReadText(path);
         return Parse(text, path, options);
     }
 
