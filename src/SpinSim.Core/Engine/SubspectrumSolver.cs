@@ -307,11 +307,12 @@ internal sealed class SubspectrumSolver
 
         var observed = Enumerable.Range(0, _particles.Length).Where(p => _particles[p].Observed).ToArray();
         var iz = new double[blocks.Count][];
-        Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b => iz[b] = ExpectedIz(blocks[b], vectors[b], observed));
         var perturbed = new BlockPerturbation?[blocks.Count];
-        if (generators is { Length: > 0 })
-            Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel,
-                b => perturbed[b] = Perturbation(blocks[b], local, vectors[b], energies[b], generators));
+        Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b =>
+        {
+            iz[b] = ExpectedIz(blocks[b], vectors[b], observed);
+            if (generators is { Length: > 0 }) perturbed[b] = Perturbation(blocks[b], local, vectors[b], energies[b], generators);
+        });
 
         var results = new RawLines[pairs.Count];
         var pairOrder = Enumerable.Range(0, pairs.Count)
