@@ -83,7 +83,7 @@ public static class SpectrumFitter
         var last = new LeastSquaresResult?[starts.Count];
         var follows = Enumerable.Range(0, starts.Count).ToArray();
         var running = Enumerable.Range(0, starts.Count).ToList();
-        var widthHz = problem.Parameters.Where(p => p.Kind == ParameterKind.LinewidthHz).Select(p => p.Start).DefaultIfEmpty(1).Min();
+        var widthHz = StartWidthHz(problem);
         for (var k = 0; k < stages.Count; k++)
         {
             if (options.Cancel.IsCancellationRequested && last[0] is not null) break;
@@ -271,7 +271,7 @@ public static class SpectrumFitter
     {
         var stages = new List<Stage>();
         var finestStep = problem.Data.Min(StepHz);
-        var width = problem.Parameters.Where(p => p.Kind == ParameterKind.LinewidthHz).Select(p => p.Start).DefaultIfEmpty(1).Min();
+        var width = StartWidthHz(problem);
         var maxJ = problem.System.Couplings.Select(c => Math.Abs(c.J.Value)).DefaultIfEmpty(0).Max();
         if (options.Continuation)
             for (var w = Math.Max(2 * options.ShiftJitterHz, maxJ); w > 2.0; w /= 3)
@@ -279,6 +279,10 @@ public static class SpectrumFitter
         stages.Add(new Stage(0, Math.Max(1, (int)(width / 10 / finestStep)), false));
         return stages;
     }
+
+    /// <summary>The narrowest starting linewidth of the fit (1 Hz when it has none): what stages and joining are measured against.</summary>
+    private static double StartWidthHz(SpectrumFitProblem problem) =>
+        problem.Parameters.Where(p => p.Kind == ParameterKind.LinewidthHz).Select(p => p.Start).DefaultIfEmpty(1).Min();
 
     private static double StepHz(FitDataset d)
     {
