@@ -38,8 +38,7 @@ public static class FieldsCommand
             Description = "Largest first-order deviation sqrt(sum (exact - first)^2 / sum exact^2) counted as first order",
             DefaultValueFactory = _ => FieldPlanSettings.DefaultTolerance,
         };
-        var shape = new Option<string>("--shape") { Description = "Lineshape: lorentzian, gaussian or voigt", DefaultValueFactory = _ => "lorentzian" };
-        shape.AcceptOnlyFromAmong("lorentzian", "gaussian", "voigt");
+        var shape = TraceChoice.ShapeOption(required: true);
         var share = new Option<double>("--gaussian-share") { Description = "For --shape voigt: Gaussian share f_G / (f_L + f_G) of the width, 0 to 1", DefaultValueFactory = _ => 0.5 };
         var json = new Option<bool>("--json") { Description = "Print a JSON list with one entry per field instead of the table" };
         var figure = new Option<string?>("--figure") { Description = "Draw the spectra at every field, stacked on one ppm axis: .png, .svg or .pdf" };

@@ -29,8 +29,7 @@ public static class FitCommand
         };
         var setupFile = new Option<string?>("--setup") { Description = "Fit file with a [fit] table; replaces the [fit] table of the system file" };
         var linewidth = new Option<double?>("--linewidth") { Description = "Starting linewidth (FWHM) in Hz (default: the file's linewidth_hz or 1 Hz)" };
-        var shape = new Option<string?>("--shape") { Description = "Lineshape: lorentzian (default), gaussian or voigt" };
-        shape.AcceptOnlyFromAmong("lorentzian", "gaussian", "voigt");
+        var shape = TraceChoice.ShapeOption(required: false);
         var starts = new Option<int?>("--starts") { Description = "Number of starts (the given values plus random perturbations); default 8" };
         var seed = new Option<int>("--seed") { Description = "Seed for the perturbed starts", DefaultValueFactory = _ => 1 };
         var report = new Option<string?>("--report") { Description = "Write the fit report as JSON" };

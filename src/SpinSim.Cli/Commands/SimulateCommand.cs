@@ -179,7 +179,7 @@ public sealed class TraceChoice
     public Option<double?> To { get; } = new("--to") { Description = "Low-ppm (right) end of the window" };
     public Option<int> Points { get; } = new("--points") { Description = "Points of the trace", DefaultValueFactory = _ => 65536 };
     public Option<double?> Linewidth { get; } = new("--linewidth") { Description = "Default full width at half maximum in Hz (nuclei with their own linewidth_hz keep it)" };
-    public Option<string> Shape { get; } = new("--shape") { Description = "Lineshape: lorentzian, gaussian or voigt", DefaultValueFactory = _ => "lorentzian" };
+    public Option<string> Shape { get; } = ShapeOption(required: true);
     public Option<double> GaussianShare { get; } = new("--gaussian-share")
     {
         Description = "For --shape voigt: Gaussian share f_G / (f_L + f_G) of the width, 0 to 1",
@@ -187,7 +187,14 @@ public sealed class TraceChoice
     };
     public Option<double> ReferenceOffset { get; } = new("--reference-offset") { Description = "Shift the whole axis by this many ppm (imitates a referencing error)" };
 
-    public TraceChoice() => Shape.AcceptOnlyFromAmong("lorentzian", "gaussian", "voigt");
+    /// <summary>A --shape option accepting <see cref="Lineshape.Names"/>; with a default (the first name) unless the caller has its own.</summary>
+    internal static Option<string> ShapeOption(bool required)
+    {
+        var option = new Option<string>("--shape") { Description = $"Lineshape: {Lineshape.NameList} (default {Lineshape.Names[0]})" };
+        if (required) option.DefaultValueFactory = _ => Lineshape.Names[0];
+        option.AcceptOnlyFromAmong([.. Lineshape.Names]);
+        return option;
+    }
 
     public void AddTo(Command command)
     {
@@ -208,11 +215,7 @@ public sealed class TraceChoice
         return new SimulationSettings(new WidthHz(width), shape, from, to, points, parse.GetValue(ReferenceOffset));
     }
 
-    /// <summary>The lineshape named by a --shape value (lorentzian, gaussian or voigt), with the Voigt's Gaussian share.</summary>
-    internal static Lineshape ShapeFrom(string name, double gaussianShare) => name switch
-    {
-        "gaussian" => Lineshape.Gaussian,
-        "voigt" => Lineshape.Voigt(gaussianShare),
-        _ => Lineshape.Lorentzian,
-    };
+    /// <summary>The lineshape named by a --shape value (one of <see cref="Lineshape.Names"/>), with the Voigt's Gaussian share.</summary>
+    internal static Lineshape ShapeFrom(string name, double gaussianShare) =>
+        Lineshape.TryParse(name, gaussianShare, out var shape) ? shape : throw new UserInputException($"--shape must be {Lineshape.NameList}, got {name}");
 }

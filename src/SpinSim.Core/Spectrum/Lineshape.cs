@@ -59,6 +59,31 @@ public sealed record Lineshape
             : throw new ArgumentOutOfRangeException(nameof(gaussianShare), gaussianShare,
                 "the Gaussian share f_G / (f_L + f_G) must lie between 0 (Lorentzian) and 1 (Gaussian)");
 
+    /// <summary>The names by which files and command options choose a lineshape, in the order they are listed.</summary>
+    public static IReadOnlyList<string> Names { get; } = ["lorentzian", "gaussian", "voigt"];
+
+    /// <summary>The names as a phrase for help texts and error messages: "lorentzian, gaussian or voigt".</summary>
+    public static string NameList => string.Join(", ", Names.Take(Names.Count - 1)) + " or " + Names[^1];
+
+    /// <summary>This shape's name in <see cref="Names"/>.</summary>
+    public string Name => Names[(int)Kind];
+
+    /// <summary>
+    /// The lineshape called <paramref name="name"/> (one of <see cref="Names"/>, any case); a Voigt gets
+    /// <paramref name="gaussianShare"/>. False for any other name.
+    /// </summary>
+    public static bool TryParse(string? name, double gaussianShare, out Lineshape shape)
+    {
+        var index = Names.ToList().FindIndex(n => string.Equals(n, name?.Trim(), StringComparison.OrdinalIgnoreCase));
+        shape = index < 0 ? Lorentzian : (LineshapeKind)index == LineshapeKind.Voigt ? Voigt(gaussianShare) : FromKind((LineshapeKind)index);
+        return index >= 0;
+    }
+
+    /// <summary>The profile of a line of total FWHM <paramref name="fwhmHz"/>, with <paramref name="extraLorentzianHz"/> of Lorentzian broadening added.</summary>
+    /// <param name="tabulated">Evaluate a Voigt's absorption from the shared table (<see cref="VoigtKernel"/>, 1e-13 of the peak) rather than the Faddeeva function: for drawing many points.</param>
+    public LineProfile Profile(double fwhmHz, double extraLorentzianHz = 0, bool tabulated = false) =>
+        new(this, fwhmHz, extraLorentzianHz, tabulated);
+
     /// <summary>The profile for a kind alone; a Voigt gets equal Lorentzian and Gaussian components.</summary>
     public static Lineshape FromKind(LineshapeKind kind) => kind switch
     {
@@ -83,12 +108,7 @@ public sealed record Lineshape
     }
 
     /// <summary>The profile at <paramref name="offsetHz"/> from the line centre, in 1/Hz, for total FWHM <paramref name="fwhmHz"/>.</summary>
-    public double DensityPerHz(double offsetHz, double fwhmHz) => Kind switch
-    {
-        LineshapeKind.Lorentzian => LorentzianDensityPerHz(offsetHz, fwhmHz),
-        LineshapeKind.Gaussian => GaussianDensityPerHz(offsetHz, fwhmHz),
-        _ => VoigtDensityPerHz(offsetHz, Components(fwhmHz)),
-    };
+    public double DensityPerHz(double offsetHz, double fwhmHz) => Profile(fwhmHz).Absorption(offsetHz);
 
     /// <summary>Im z = f_L / (2 sigma sqrt 2) = sqrt(ln 2) f_L / f_G of a Voigt, the same for every width.</summary>
     internal double VoigtReducedLorentzianWidth => Math.Sqrt(Math.Log(2)) * (1 - GaussianShare) / GaussianShare;
@@ -97,19 +117,10 @@ public sealed record Lineshape
         Kind == LineshapeKind.Voigt ? $"Voigt (Gaussian share {GaussianShare:0.###})" : Kind.ToString();
 
     /// <summary>(1/pi) (G/2) / (offset^2 + (G/2)^2) for FWHM G, in 1/Hz.</summary>
-    public static double LorentzianDensityPerHz(double offsetHz, double fwhmHz)
-    {
-        double halfWidth = 0.5 * fwhmHz;
-        return halfWidth / (Math.PI * (offsetHz * offsetHz + halfWidth * halfWidth));
-    }
+    public static double LorentzianDensityPerHz(double offsetHz, double fwhmHz) => Lorentzian.Profile(fwhmHz).Absorption(offsetHz);
 
     /// <summary>exp(-offset^2 / (2 sigma^2)) / (sigma sqrt(2 pi)), sigma = FWHM / (2 sqrt(2 ln 2)), in 1/Hz.</summary>
-    public static double GaussianDensityPerHz(double offsetHz, double fwhmHz)
-    {
-        double sigma = GaussianSigmaHz(fwhmHz);
-        double u = offsetHz / sigma;
-        return Math.Exp(-0.5 * u * u) / (sigma * SqrtTwoPi);
-    }
+    public static double GaussianDensityPerHz(double offsetHz, double fwhmHz) => Gaussian.Profile(fwhmHz).Absorption(offsetHz);
 
     /// <summary>
     /// The Voigt profile Re w(z) / (sigma sqrt(2 pi)), z = (offset + i f_L / 2) / (sigma sqrt 2), in 1/Hz,

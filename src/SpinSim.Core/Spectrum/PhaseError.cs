@@ -1,5 +1,3 @@
-using System.Numerics;
-
 namespace SpinSim.Core.Spectrum;
 
 /// <summary>
@@ -20,27 +18,15 @@ public static class PhaseError
         if (sin == 0) return result;
         foreach (var line in lines)
         {
-            var (lorentzian, gaussian) = shape.Components(line.FwhmHz);
+            var profile = shape.Profile(line.FwhmHz);
             var reach = CutoffFwhm * line.FwhmHz;
             for (var i = 0; i < grid.Points; i++)
             {
                 var dx = grid.HzAt(i) - line.CentreHz;
                 if (Math.Abs(dx) > reach) continue;
-                result[i] -= sin * line.Area * Dispersion(dx, lorentzian, gaussian);
+                result[i] -= sin * line.Area * profile.Dispersion(dx);
             }
         }
         return result;
-    }
-
-    private static double Dispersion(double dx, double lorentzianFwhm, double gaussianFwhm)
-    {
-        if (gaussianFwhm == 0)
-        {
-            var half = lorentzianFwhm / 2;
-            return dx / Math.PI / (dx * dx + half * half);
-        }
-        var sigma = Lineshape.GaussianSigmaHz(gaussianFwhm);
-        var w = Faddeeva.W(new Complex(dx / (sigma * Math.Sqrt(2)), lorentzianFwhm / 2 / (sigma * Math.Sqrt(2))));
-        return w.Imaginary / (sigma * Math.Sqrt(2 * Math.PI));
     }
 }

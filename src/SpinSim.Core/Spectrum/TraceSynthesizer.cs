@@ -44,9 +44,6 @@ public static class TraceSynthesizer
         Validate(lines);
 
         var axis = new Axis(grid);
-        var kernel = shape.Kind == LineshapeKind.Voigt && shape.GaussianShare is > 0 and < 1
-            ? VoigtKernel.For(shape.VoigtReducedLorentzianWidth)
-            : null;
         var trace = new double[grid.Points];
         var cumulativeWork = new long[lines.Length + 1];
         for (int i = 0; i < lines.Length; i++)
@@ -60,7 +57,7 @@ public static class TraceSynthesizer
         if (threads <= 1)
         {
             foreach (var line in lines)
-                Draw(line, shape, kernel, cutoffFwhm, axis, trace);
+                Draw(line, shape, cutoffFwhm, axis, trace);
             return trace;
         }
 
@@ -82,7 +79,7 @@ public static class TraceSynthesizer
         {
             var buffer = t == 0 ? trace : buffers[t] = new double[trace.Length];
             for (int i = bounds[t]; i < bounds[t + 1]; i++)
-                Draw(all[i], shape, kernel, cutoffFwhm, axis, buffer);
+                Draw(all[i], shape, cutoffFwhm, axis, buffer);
         });
         for (int t = 1; t < threads; t++)
         {
@@ -113,64 +110,14 @@ public static class TraceSynthesizer
     private static double HalfWindowHz(RenderLine line, Lineshape shape, double cutoffFwhm) =>
         (shape.Kind == LineshapeKind.Gaussian ? Math.Min(cutoffFwhm, GaussianCutoffFwhm) : cutoffFwhm) * line.FwhmHz;
 
-    private static void Draw(RenderLine line, Lineshape shape, VoigtKernel? kernel, double cutoffFwhm, Axis axis, double[] trace)
+    private static void Draw(RenderLine line, Lineshape shape, double cutoffFwhm, Axis axis, double[] trace)
     {
         var (first, last) = axis.Window(line, HalfWindowHz(line, shape, cutoffFwhm));
         if (first > last) return;
-        switch (shape.Kind)
-        {
-            case LineshapeKind.Lorentzian:
-                DrawLorentzian(line.CentreHz, line.Area, line.FwhmHz, first, last, axis, trace);
-                break;
-            case LineshapeKind.Gaussian:
-                DrawGaussian(line.CentreHz, line.Area, line.FwhmHz, first, last, axis, trace);
-                break;
-            default:
-                var (lorentzianHz, gaussianHz) = shape.Components(line.FwhmHz);
-                if (kernel is null && gaussianHz == 0) DrawLorentzian(line.CentreHz, line.Area, lorentzianHz, first, last, axis, trace);
-                else if (kernel is null) DrawGaussian(line.CentreHz, line.Area, gaussianHz, first, last, axis, trace);
-                else DrawVoigt(line.CentreHz, line.Area, gaussianHz, kernel, first, last, axis, trace);
-                break;
-        }
-    }
-
-    private static void DrawLorentzian(double centreHz, double area, double fwhmHz, int first, int last, Axis axis, double[] trace)
-    {
-        double halfWidth = 0.5 * fwhmHz, halfWidthSquared = halfWidth * halfWidth;
-        double numerator = area * halfWidth / Math.PI;
-        double offset0 = axis.FirstHz - centreHz;
+        var profile = shape.Profile(line.FwhmHz, tabulated: true);
+        double offset0 = axis.FirstHz - line.CentreHz;
         for (int i = first; i <= last; i++)
-        {
-            double d = offset0 + i * axis.StepHz;
-            trace[i] += numerator / (d * d + halfWidthSquared);
-        }
-    }
-
-    private static void DrawGaussian(double centreHz, double area, double fwhmHz, int first, int last, Axis axis, double[] trace)
-    {
-        double sigma = Lineshape.GaussianSigmaHz(fwhmHz);
-        double height = area / (sigma * Math.Sqrt(2 * Math.PI));
-        double minusHalfOverVariance = -0.5 / (sigma * sigma);
-        double offset0 = axis.FirstHz - centreHz;
-        for (int i = first; i <= last; i++)
-        {
-            double d = offset0 + i * axis.StepHz;
-            trace[i] += height * Math.Exp(minusHalfOverVariance * d * d);
-        }
-    }
-
-    // The kernel's y is the same for every line of the shape; only sigma scales from line to line.
-    private static void DrawVoigt(double centreHz, double area, double gaussianFwhmHz, VoigtKernel kernel, int first, int last, Axis axis, double[] trace)
-    {
-        double sigma = Lineshape.GaussianSigmaHz(gaussianFwhmHz);
-        double height = area / (sigma * Math.Sqrt(2 * Math.PI));
-        double scale = 1 / (sigma * Math.Sqrt(2));
-        double offset0 = axis.FirstHz - centreHz;
-        for (int i = first; i <= last; i++)
-        {
-            double d = offset0 + i * axis.StepHz;
-            trace[i] += height * kernel.RealPart(d * scale);
-        }
+            trace[i] += line.Area * profile.Absorption(offset0 + i * axis.StepHz);
     }
 
     /// <summary>The grid's points as Hz from true 0 ppm: FirstHz + i StepHz.</summary>

@@ -95,13 +95,10 @@ public static class FitSetupReader
                     setup = setup with { Starts = (int)starts };
                     break;
                 case "lineshape":
-                    shape = (e.Value as string)?.ToLowerInvariant() switch
-                    {
-                        "lorentzian" => Lineshape.Lorentzian,
-                        "gaussian" => Lineshape.Gaussian,
-                        "voigt" => Lineshape.Voigt(),
-                        _ => throw new FitSetupException(path, e.Line, $"unknown lineshape {e.Value}", "Use \"lorentzian\", \"gaussian\" or \"voigt\""),
-                    };
+                    shape = Lineshape.TryParse(e.Value as string, Lineshape.EqualComponents, out var named)
+                        ? named
+                        : throw new FitSetupException(path, e.Line, $"unknown lineshape {e.Value}",
+                            "Use one of " + string.Join(", ", Lineshape.Names.Select(n => $"\"{n}\"")));
                     break;
                 default:
                     throw new FitSetupException(path, e.Line, $"unknown key \"{e.Key}\" in [fit]", $"Allowed keys: {string.Join(", ", Keys)}");

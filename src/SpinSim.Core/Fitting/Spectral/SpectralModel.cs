@@ -1,4 +1,3 @@
-using System.Numerics;
 using SpinSim.Core.Engine;
 using SpinSim.Core.LinearAlgebra;
 using SpinSim.Core.Model;
@@ -240,7 +239,9 @@ internal sealed class SpectralModel : ILeastSquaresModel
         // A line whose intensity and moment move by less than this (per Hz of the parameter) is left out of a column:
         // 1e-9 of one nucleus's line, far below anything the minimiser or the covariance can see.
         var negligible = 1e-9 * _singleNucleus;
-        var profile = new Profile(_shape, globalWidth, _broadeningHz, values.PhaseDeg, widthColumn >= 0, phaseColumn >= 0);
+        var profile = _shape.Profile(globalWidth, _broadeningHz);
+        var phase = PhaseRotation.FromDegrees(values.PhaseDeg);
+        var slopes = (Width: widthColumn >= 0, Phase: phaseColumn >= 0);
         var others = widthColumn >= 0 || offsetColumn >= 0 || phaseColumn >= 0;
         for (var l = 0; l < lines.Lines.Count; l++)
         {
@@ -249,7 +250,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
             // Window half-width R = cutoff(I_eff) (L + G), with cutoff = 100 sqrt(I_eff / single) between its limits.
             var share = effective / _singleNucleus;
             var cutoff = CutoffFor(effective);
-            var dReach = UncappedCutoff(effective) > MinimumCutoffWidths && share < 1 ? profile.Total * CutoffWidths * 0.5 / Math.Sqrt(share) / _singleNucleus : 0;
+            var dReach = UncappedCutoff(effective) > MinimumCutoffWidths && share < 1 ? profile.WidthScaleHz * CutoffWidths * 0.5 / Math.Sqrt(share) / _singleNucleus : 0;
             var di = lines.Derivatives!.IntensityOf(l);
             var dm = lines.Derivatives.MomentOf(l);
             var activeCount = 0;
@@ -262,7 +263,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
                 active[activeCount++] = g;
             }
             if (activeCount == 0 && !others) continue;
-            AddLineDerivatives(data.Hz, columns, count, lines.Lines[l].FrequencyHz + offsetHz, cutoff, profile,
+            AddLineDerivatives(data.Hz, columns, count, lines.Lines[l].FrequencyHz + offsetHz, cutoff, profile, phase, slopes,
                 active.AsSpan(0, activeCount), a, b, c, areaScale * effective, work);
         }
 
@@ -286,34 +287,6 @@ internal sealed class SpectralModel : ILeastSquaresModel
     /// <summary>The Jacobian column of full parameter <paramref name="index"/>: its free index, or -1 when it is absent, fixed or held.</summary>
     private int Column(int index) => index >= 0 && _layout.FreeIndexOf(index) is var f && f >= 0 && !IsHeld(f) ? f : -1;
 
-    /// <summary>The profile of every line of one evaluation: components, phase, and what is differentiated.</summary>
-    private sealed class Profile
-    {
-        public readonly double Half, Sigma, Denominator, Norm, Cos, Sin, Total;
-        public readonly bool Gaussian, Width, Phase;
-
-        /// <summary>d(Lorentzian half-width)/dw and dσ/σ dw: the components scale with the width (the broadening does not).</summary>
-        public readonly double HalfPerWidth, SigmaPerWidth, TotalPerWidth;
-
-        public Profile(Lineshape shape, double widthHz, double broadeningHz, double phaseDeg, bool width, bool phase)
-        {
-            var (lorentzian, gaussian) = shape.Components(widthHz);
-            Half = (lorentzian + broadeningHz) / 2;
-            Total = lorentzian + broadeningHz + gaussian;
-            Gaussian = gaussian > 0;
-            Sigma = Gaussian ? Lineshape.GaussianSigmaHz(gaussian) : 0;
-            Denominator = Sigma * Math.Sqrt(2);
-            Norm = Gaussian ? 1 / (Sigma * Math.Sqrt(2 * Math.PI)) : 0;
-            Cos = Math.Cos(phaseDeg * Math.PI / 180);
-            Sin = Math.Sin(phaseDeg * Math.PI / 180);
-            HalfPerWidth = lorentzian / widthHz / 2;
-            SigmaPerWidth = 1 / widthHz;
-            TotalPerWidth = (lorentzian + gaussian) / widthHz;
-            Width = width;
-            Phase = phase;
-        }
-    }
-
     /// <summary>
     /// For one line at <paramref name="centreHz"/> whose rendered profile is v = k(x - centre) τ(|x - centre|, R) (k of
     /// unit area with phase, τ the taper of <see cref="AddLine"/>, R its window's half-width): adds
@@ -321,10 +294,10 @@ internal sealed class SpectralModel : ILeastSquaresModel
     /// -e ∂v/∂x and e ∂v/∂φ (per degree) to the width, offset and phase columns, over the line's window.
     /// <paramref name="columns"/> holds one column of the fitted points per slot (spin derivatives, width, offset, phase).
     /// </summary>
-    private static void AddLineDerivatives(double[] hz, double[] columns, int slots, double centreHz, double cutoff, Profile q,
-        ReadOnlySpan<int> active, double[] a, double[] b, double[] c, double e, Workspace work)
+    private static void AddLineDerivatives(double[] hz, double[] columns, int slots, double centreHz, double cutoff, LineProfile q,
+        PhaseRotation phase, (bool Width, bool Phase) wanted, ReadOnlySpan<int> active, double[] a, double[] b, double[] c, double e, Workspace work)
     {
-        var reach = cutoff * q.Total;
+        var reach = q.WindowHz(cutoff);
         var first = LowerBound(hz, centreHz - reach);
         var last = LowerBound(hz, centreHz + reach);
         var length = last - first;
@@ -340,36 +313,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
         for (var j = 0; j < length; j++)
         {
             var dx = hz[first + j] - centreHz;
-            double k, slope, byWidth = 0, byPhase = 0;
-            if (!q.Gaussian)
-            {
-                var q2 = dx * dx + q.Half * q.Half;
-                var numerator = q.Half * q.Cos - dx * q.Sin;
-                k = numerator / (Math.PI * q2);
-                slope = (-q.Sin * q2 - 2 * dx * numerator) / (Math.PI * q2 * q2);
-                if (q.Width) byWidth = (q.Cos * q2 - 2 * q.Half * numerator) / (Math.PI * q2 * q2) * q.HalfPerWidth;
-                if (q.Phase) byPhase = -(q.Half * q.Sin + dx * q.Cos) / (Math.PI * q2);
-            }
-            else
-            {
-                // w'(z) = -2 z w(z) + 2i / sqrt(pi) (the Faddeeva function's derivative); k = Re[w e^(i phi)] / (sigma sqrt(2 pi)).
-                var z = new Complex(dx / q.Denominator, q.Half / q.Denominator);
-                var w = Faddeeva.W(z);
-                var dw = -2 * z * w + new Complex(0, 2 / Math.Sqrt(Math.PI));
-                var rotation = new Complex(q.Cos, q.Sin);
-                var wr = w * rotation;
-                var dwr = dw * rotation;
-                k = q.Norm * wr.Real;
-                slope = q.Norm * dwr.Real / q.Denominator;
-                if (q.Width)
-                {
-                    // dz/d(half) = i / (sigma sqrt 2); d/d(sigma) acts on the norm (-k / sigma) and on z (-z / sigma).
-                    var byHalf = -q.Norm * dwr.Imaginary / q.Denominator;
-                    var bySigma = -k / q.Sigma - q.Norm * (dwr * z).Real / q.Sigma;
-                    byWidth = byHalf * q.HalfPerWidth + bySigma * q.Sigma * q.SigmaPerWidth;
-                }
-                if (q.Phase) byPhase = -q.Norm * wr.Imaginary;
-            }
+            var (k, slope, byWidth, byPhase) = q.Slopes(dx, phase, wanted.Width, wanted.Phase);
             var distance = Math.Abs(dx);
             double taper = 1, taperByDistance = 0, taperByReach = 0;
             if (distance > taperStart)
@@ -384,7 +328,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
             v[j] = k * taper;
             vx[j] = slope * taper + k * taperByDistance * Math.Sign(dx);
             vr[j] = k * taperByReach;
-            vw[j] = byWidth * taper + vr[j] * cutoff * q.TotalPerWidth;
+            vw[j] = byWidth * taper + vr[j] * cutoff * q.WidthScalePerWidth;
             vp[j] = byPhase * taper * (Math.PI / 180);
         }
         for (var n = 0; n < active.Length; n++)
@@ -393,9 +337,9 @@ internal sealed class SpectralModel : ILeastSquaresModel
             SmallDense.AddScaled(column, a[n], v, b[n], vx);
             if (tapered && c[n] != 0) SmallDense.AddScaled(column, c[n], vr, 0, vr);
         }
-        if (q.Width) SmallDense.AddScaled(columns.AsSpan(slots * points + first, length), e, vw, 0, vw);
+        if (wanted.Width) SmallDense.AddScaled(columns.AsSpan(slots * points + first, length), e, vw, 0, vw);
         SmallDense.AddScaled(columns.AsSpan((slots + 1) * points + first, length), -e, vx, 0, vx);
-        if (q.Phase) SmallDense.AddScaled(columns.AsSpan((slots + 2) * points + first, length), e, vp, 0, vp);
+        if (wanted.Phase) SmallDense.AddScaled(columns.AsSpan((slots + 2) * points + first, length), e, vp, 0, vp);
     }
 
     /// <summary>Scratch profiles of one line, reused from line to line.</summary>
@@ -455,8 +399,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
         var data = _data[d];
         var v = Values(full, d);
         var areaScale = v.Scale / _singleNucleus / data.Normalisation;
-        var cos = Math.Cos(v.PhaseDeg * Math.PI / 180);
-        var sin = Math.Sin(v.PhaseDeg * Math.PI / 180);
+        var phase = PhaseRotation.FromDegrees(v.PhaseDeg);
         y.Clear();
         for (var l = 0; l < lines.Lines.Count; l++)
         {
@@ -464,7 +407,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
             if (!(width > 0)) return false;
             var (effective, _, _) = Faded(lines.Lines[l].Intensity);
             if (effective == 0) continue;
-            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + v.OffsetHz, effective * areaScale, width, CutoffFor(effective), cos, sin);
+            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + v.OffsetHz, effective * areaScale, width, CutoffFor(effective), phase);
         }
         AddBaseline(data, v.Baseline, y);
         return true;
@@ -522,47 +465,27 @@ internal sealed class SpectralModel : ILeastSquaresModel
 
     private double UncappedCutoff(double effective) => CutoffWidths * Math.Sqrt(Math.Min(1, effective / _singleNucleus));
 
-    private void AddLine(double[] hz, Span<double> y, double centreHz, double area, double widthHz, double cutoffWidths, double cos, double sin)
+    private void AddLine(double[] hz, Span<double> y, double centreHz, double area, double widthHz, double cutoffWidths, PhaseRotation phase)
     {
-        var (lorentzian, gaussian) = _shape.Components(widthHz);
-        lorentzian += _broadeningHz;
-        var reach = cutoffWidths * (lorentzian + gaussian);
+        var profile = _shape.Profile(widthHz, _broadeningHz);
+        var reach = profile.WindowHz(cutoffWidths);
         var first = LowerBound(hz, centreHz - reach);
         var last = LowerBound(hz, centreHz + reach);
         var taper = TaperStart * reach;
-        if (gaussian == 0)
+        // The core of the window needs no taper; only the two outer bands do.
+        var coreFirst = LowerBound(hz, centreHz - taper);
+        var coreLast = LowerBound(hz, centreHz + taper);
+        for (var i = coreFirst; i < coreLast; i++)
+            y[i] += area * profile.Phased(hz[i] - centreHz, phase);
+        for (var i = first; i < coreFirst; i++)
         {
-            var half = lorentzian / 2;
-            var h2 = half * half;
-            var a = area / Math.PI;
-            var absorption = half * cos;
-            // The core of the window needs no taper; only the two outer bands do.
-            var coreFirst = LowerBound(hz, centreHz - taper);
-            var coreLast = LowerBound(hz, centreHz + taper);
-            for (var i = coreFirst; i < coreLast; i++)
-            {
-                var dx = hz[i] - centreHz;
-                y[i] += a / (dx * dx + h2) * (absorption - dx * sin);
-            }
-            for (var i = first; i < coreFirst; i++)
-            {
-                var dx = hz[i] - centreHz;
-                y[i] += a / (dx * dx + h2) * (absorption - dx * sin) * Taper(-dx, taper, reach);
-            }
-            for (var i = coreLast; i < last; i++)
-            {
-                var dx = hz[i] - centreHz;
-                y[i] += a / (dx * dx + h2) * (absorption - dx * sin) * Taper(dx, taper, reach);
-            }
-            return;
+            var dx = hz[i] - centreHz;
+            y[i] += area * profile.Phased(dx, phase) * Taper(-dx, taper, reach);
         }
-        var sigma = Lineshape.GaussianSigmaHz(gaussian);
-        var norm = area / (sigma * Math.Sqrt(2 * Math.PI));
-        var denominator = sigma * Math.Sqrt(2);
-        for (var i = first; i < last; i++)
+        for (var i = coreLast; i < last; i++)
         {
-            var w = Faddeeva.W(new Complex((hz[i] - centreHz) / denominator, lorentzian / 2 / denominator));
-            y[i] += norm * (w.Real * cos - w.Imaginary * sin) * Taper(Math.Abs(hz[i] - centreHz), taper, reach);
+            var dx = hz[i] - centreHz;
+            y[i] += area * profile.Phased(dx, phase) * Taper(dx, taper, reach);
         }
     }
 
