@@ -48,42 +48,51 @@ public sealed record FigureOptions
     /// <exception cref="ArgumentException">A size given half in mm and half in pixels, a missing half of a pair, or a value out of range.</exception>
     public FigureSize Resolve()
     {
+        var (size, problem) = Evaluate();
+        return problem is null ? size : throw new ArgumentException(problem);
+    }
+
+    /// <summary>What is wrong with these options, in words for the user, or null when they describe a figure.</summary>
+    public string? Problem() => Evaluate().Problem;
+
+    private (FigureSize Size, string? Problem) Evaluate()
+    {
         if (!(double.IsFinite(Dpi) && Dpi >= MinDpi && Dpi <= MaxDpi))
-            throw new ArgumentException($"Dpi must lie between {MinDpi} and {MaxDpi}, got {Dpi}", nameof(Dpi));
+            return (default, $"the resolution must lie between {MinDpi} and {MaxDpi} dpi, got {Dpi}");
         if (!(double.IsFinite(FontSizePt) && FontSizePt >= MinFontSizePt && FontSizePt <= MaxFontSizePt))
-            throw new ArgumentException($"FontSizePt must lie between {MinFontSizePt} and {MaxFontSizePt} points, got {FontSizePt}", nameof(FontSizePt));
+            return (default, $"the font size must lie between {MinFontSizePt} and {MaxFontSizePt} points, got {FontSizePt}");
 
         var hasMm = WidthMm is not null || HeightMm is not null;
         var hasPx = WidthPx is not null || HeightPx is not null;
         if (hasMm && hasPx)
-            throw new ArgumentException("give the figure size either in millimetres (WidthMm, HeightMm) or in pixels (WidthPx, HeightPx), not both");
+            return (default, "give the figure size either in millimetres (width and height in mm) or in pixels, not both");
 
         double widthIn, heightIn;
         if (hasPx)
         {
             if (WidthPx is not { } w || HeightPx is not { } h)
-                throw new ArgumentException("give both WidthPx and HeightPx, or neither");
+                return (default, "give both the width and the height in pixels, or neither");
             if (w < 1 || h < 1 || w > MaxPixels || h > MaxPixels)
-                throw new ArgumentException($"pixel sizes must lie between 1 and {MaxPixels}, got {w} x {h}");
+                return (default, $"pixel sizes must lie between 1 and {MaxPixels}, got {w} x {h}");
             widthIn = w / Dpi;
             heightIn = h / Dpi;
         }
         else
         {
             if (hasMm && (WidthMm is null || HeightMm is null))
-                throw new ArgumentException("give both WidthMm and HeightMm, or neither");
+                return (default, "give both the width and the height in mm, or neither");
             var wmm = WidthMm ?? DefaultWidthMm;
             var hmm = HeightMm ?? DefaultHeightMm;
             if (!(double.IsFinite(wmm) && wmm > 0 && double.IsFinite(hmm) && hmm > 0))
-                throw new ArgumentException($"sizes in millimetres must be positive, got {wmm} x {hmm}");
+                return (default, $"sizes in millimetres must be positive, got {wmm} x {hmm}");
             widthIn = wmm / MillimetresPerInch;
             heightIn = hmm / MillimetresPerInch;
         }
 
         var size = new FigureSize(widthIn, heightIn, Dpi);
         if (size.WidthPx > MaxPixels || size.HeightPx > MaxPixels)
-            throw new ArgumentException($"{size.WidthPx} x {size.HeightPx} pixels at {Dpi} dpi exceeds {MaxPixels} pixels a side; lower Dpi or the size");
-        return size;
+            return (default, $"{size.WidthPx} x {size.HeightPx} pixels at {Dpi} dpi exceeds {MaxPixels} pixels a side; lower the dpi or the size");
+        return (size, null);
     }
 }
 

@@ -19,15 +19,23 @@ public static class FigureRenderer
 
     /// <summary>The format named by the extension of <paramref name="path"/>, compared case-insensitively.</summary>
     /// <exception cref="ArgumentException">No extension, or one that is not .png, .svg or .pdf.</exception>
-    public static FigureFormat FromExtension(string path)
+    public static FigureFormat FromExtension(string path) =>
+        TryFromExtension(path, out var format, out var problem) ? format : throw new ArgumentException(problem, nameof(path));
+
+    /// <summary>The format named by the extension of <paramref name="path"/>, or false with the problem in words.</summary>
+    public static bool TryFromExtension(string path, out FigureFormat format, out string problem)
     {
         ArgumentNullException.ThrowIfNull(path);
         var extension = Path.GetExtension(path);
-        foreach (var (ext, format) in Known)
-            if (string.Equals(ext, extension, StringComparison.OrdinalIgnoreCase)) return format;
+        foreach (var (ext, known) in Known)
+            if (string.Equals(ext, extension, StringComparison.OrdinalIgnoreCase))
+            {
+                (format, problem) = (known, "");
+                return true;
+            }
         var shown = extension.Length == 0 ? "no extension" : $"extension '{extension}'";
-        throw new ArgumentException(
-            $"cannot tell the figure format of '{path}': {shown}; use one of {string.Join(", ", Extensions)}", nameof(path));
+        (format, problem) = (default, $"cannot tell the figure format from {shown}; use one of {string.Join(", ", Extensions)}");
+        return false;
     }
 
     /// <summary>

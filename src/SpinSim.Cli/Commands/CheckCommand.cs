@@ -11,7 +11,7 @@ public static class CheckCommand
 {
     public static Command Build(CommandIo io)
     {
-        var file = new Argument<string>("system") { Description = "Spin-system file (.toml in SpinSim's schema, or .json)" };
+        var file = SystemInput.FileArgument("Spin-system file (.toml in SpinSim's schema, or .json)");
         var json = new Option<bool>("--json") { Description = "Print the system as JSON for other programs instead of the summary" };
         var engine = new EngineChoice();
         var command = new Command("check",
@@ -22,21 +22,22 @@ public static class CheckCommand
         engine.AddTo(command);
         command.SetAction(parse =>
         {
-            var document = SpinSystemFiles.Read(parse.GetValue(file)!);
             var options = engine.Read(parse);
+            var (document, _) = SystemInput.Load(io, parse.GetValue(file)!);
             if (parse.GetValue(json))
             {
                 io.Out.WriteLine(SpinSystemJson.Write(document.System, document.DefaultWidth));
-                return 0;
+                return ExitCodes.Success;
             }
-            Print(io.Out, document, options);
-            return 0;
+            Print(io, document, options);
+            return ExitCodes.Success;
         });
         return command;
     }
 
-    private static void Print(TextWriter o, SpinSystemDocument document, EngineOptions options)
+    private static void Print(CommandIo io, SpinSystemDocument document, EngineOptions options)
     {
+        var o = io.Out;
         var s = document.System;
         o.WriteLine($"{document.Path}: {(string.IsNullOrEmpty(s.Title) ? "(no title)" : s.Title)}");
         o.WriteLine($"field            {s.Field.Value:0.###} MHz (1H), {s.Field.Tesla:0.####} T; observed nucleus {s.Observed}");
@@ -57,12 +58,12 @@ public static class CheckCommand
         var estimate = ResourceEstimate.For(s, plan);
         o.WriteLine($"cost             {estimate.Describe()}");
         o.WriteLine($"backend          {DenseBackends.Default.Name}");
-        var warnings = document.Warnings.ToList();
+        var warnings = new List<string>();
         var seconds = DenseBackends.NativeAvailable ? estimate.NativeSeconds : estimate.ManagedSeconds;
         if (estimate.WorkingBytes > options.MemoryBudgetBytes)
             warnings.Add($"simulate will refuse this plan: it needs about {estimate.WorkingBytes / (1L << 30):0.##} GiB, more than the budget of {options.MemoryBudgetBytes / (double)(1L << 30):0.##} GiB");
         else if (seconds > 10) warnings.Add($"this system will be slow to simulate (about {seconds:0} s); merge equivalent nuclei into sets where they are equivalent");
-        foreach (var w in warnings) o.WriteLine($"warning: {w}");
+        foreach (var w in warnings) io.Warn(w);
     }
 
     private static string Count(int n, string one, string many) => $"{n} {(n == 1 ? one : many)}";

@@ -1,5 +1,6 @@
 using System.CommandLine;
 using System.Globalization;
+using SpinSim.Core.Model;
 using SpinSim.Core.Planning;
 using SpinSim.Core.Spectrum;
 using SpinSim.Core.Traces;
@@ -26,22 +27,24 @@ public static class FieldsCommand
 
     public static Command Build(CommandIo io)
     {
-        var file = new Argument<string>("system") { Description = "Spin-system file (.toml or .json); its own field is not used" };
+        var file = SystemInput.FileArgument("Spin-system file (.toml or .json); its own field is not used");
         var at = new Option<string?>("--at")
         {
             Description = "Comma-separated 1H frequencies in MHz (default " +
                           string.Join(",", FieldPlanSettings.DefaultFields.Select(f => f.Value.ToString(CultureInfo.InvariantCulture))) + ")",
+            HelpName = "MHZ,MHZ,...",
         };
-        var linewidth = new Option<double?>("--linewidth") { Description = "Full width at half maximum in Hz (default: the file's linewidth_hz, else 1 Hz); nuclei with their own keep it" };
+        var linewidth = new Option<double?>("--linewidth") { Description = "Full width at half maximum in Hz (default: the file's linewidth_hz, else 1 Hz); nuclei with their own keep it", HelpName = "HZ" };
         var tolerance = new Option<double>("--tolerance")
         {
             Description = "Largest first-order deviation sqrt(sum (exact - first)^2 / sum exact^2) counted as first order",
             DefaultValueFactory = _ => FieldPlanSettings.DefaultTolerance,
+            HelpName = "FRACTION",
         };
         var shape = TraceChoice.ShapeOption(required: true);
-        var share = new Option<double>("--gaussian-share") { Description = "For --shape voigt: Gaussian share f_G / (f_L + f_G) of the width, 0 to 1", DefaultValueFactory = _ => 0.5 };
+        var share = new Option<double>("--gaussian-share") { Description = "For --shape voigt: Gaussian share f_G / (f_L + f_G) of the width, 0 to 1", DefaultValueFactory = _ => 0.5, HelpName = "FRACTION" };
         var json = new Option<bool>("--json") { Description = "Print a JSON list with one entry per field instead of the table" };
-        var figure = new Option<string?>("--figure") { Description = "Draw the spectra at every field, stacked on one ppm axis: .png, .svg or .pdf" };
+        var figure = new Option<string?>("--figure") { Description = "Draw the spectra at every field, stacked on one ppm axis: .png, .svg or .pdf", HelpName = "FILE" };
         var command = new Command("fields", "Compare a spin system at several fields: distance from first order, resolved lines and the lowest first-order field per cluster")
         {
             file, at, linewidth, tolerance, shape, share, json, figure,
@@ -50,17 +53,24 @@ public static class FieldsCommand
         {
             var path = parse.GetValue(file)!;
             var fields = ParseFields(parse.GetValue(at));
-            var document = SpinSystemFiles.Read(path);
-            foreach (var w in document.Warnings) io.Error.WriteLine($"warning: {w}");
+            var (document, _) = SystemInput.Load(io, path);
 
             var width = parse.GetValue(linewidth) ?? document.DefaultWidth?.Value ?? SimulateCommand.FallbackLinewidthHz;
-            if (!(width > 0 && double.IsFinite(width))) throw new UserInputException($"--linewidth must be above 0 Hz, got {width}");
+            if (!(width > 0 && width <= SpinSystemRules.MaxLinewidthHz)) throw new UserInputException("--linewidth", $"must be above 0 and at most {SpinSystemRules.MaxLinewidthHz:G3} Hz, got {width}");
             var tol = parse.GetValue(tolerance);
-            if (!(tol > 0 && double.IsFinite(tol))) throw new UserInputException($"--tolerance must be above 0, got {tol}");
+            if (!(tol > 0 && double.IsFinite(tol))) throw new UserInputException("--tolerance", $"must be above 0, got {tol}");
             var gaussianShare = parse.GetValue(share);
-            if (!(gaussianShare >= 0 && gaussianShare <= 1)) throw new UserInputException($"--gaussian-share must be between 0 and 1, got {gaussianShare}");
+            if (!(gaussianShare >= 0 && gaussianShare <= 1)) throw new UserInputException("--gaussian-share", $"must be between 0 and 1, got {gaussianShare}");
+            using var outputs = new StagedOutputs([path]);
             var figurePath = parse.GetValue(figure);
-            var format = figurePath is null ? (FigureFormat?)null : FormatOf(figurePath);
+            var format = figurePath is null ? (FigureFormat?)null : FigureChoice.FormatOf(figurePath);
+            if (figurePath is not null) outputs.Check(figurePath);
+            foreach (var f in fields)
+                if (SpinSystemRules.Check(f, [], []).FirstOrDefault() is { } problem)
+                    throw new UserInputException("--at", problem.Message, problem.Fix.Replace("field_mhz = ", "--at "));
+            if (document.System.ObservedNucleusCount == 0)
+                throw new UserInputException(path, $"the system has no {document.System.Observed} nuclei, so there is no spectrum to compare across fields",
+                    $"Add {document.System.Observed} nuclei, or set observe to an isotope the system has");
 
             var settings = new FieldPlanSettings(new WidthHz(width), TraceChoice.ShapeFrom(parse.GetValue(shape)!, gaussianShare), tol);
             var plan = FieldPlanner.Plan(document.System, fields, settings, io.Cancel);
@@ -71,11 +81,10 @@ public static class FieldsCommand
             if (figurePath is not null)
             {
                 var traces = StackedTraces(document, plan);
-                AtomicFile.WriteBytes(figurePath, stream => StackedFieldsFigure.Render(traces, FigureOptions.Default, format!.Value, stream), [path]);
-                // Keep stdout pure JSON when JSON was asked for.
-                (parse.GetValue(json) ? io.Error : io.Out).WriteLine($"figure written to {figurePath}");
+                outputs.AddBytes(figurePath, stream => StackedFieldsFigure.Render(traces, FigureOptions.Default, format!.Value, stream));
             }
-            return 0;
+            foreach (var written in outputs.Commit()) io.Status($"written: {written}");
+            return ExitCodes.Success;
         });
         return command;
     }
@@ -90,22 +99,16 @@ public static class FieldsCommand
         foreach (var item in items)
         {
             if (item.Length == 0)
-                throw new UserInputException($"--at {list}: an empty value between commas; give 1H frequencies in MHz such as --at 60,80,400");
+                throw new UserInputException($"--at {list}", "an empty value between commas", "Give 1H frequencies in MHz such as --at 60,80,400");
             if (!double.TryParse(item, NumberStyles.Float, CultureInfo.InvariantCulture, out var mhz))
-                throw new UserInputException($"--at {list}: \"{item}\" is not a number of MHz; give 1H frequencies such as --at 60,80,400 (decimal point, comma between fields)");
+                throw new UserInputException($"--at {list}", $"\"{item}\" is not a number of MHz", "Give 1H frequencies such as --at 60,80,400 (decimal point, comma between fields)");
             if (!(mhz > 0) || !double.IsFinite(mhz))
-                throw new UserInputException($"--at {list}: {item} MHz is not a field; every field must be a finite 1H frequency above 0 MHz");
+                throw new UserInputException($"--at {list}", $"{item} MHz is not a field; every field must be a finite 1H frequency above 0 MHz");
             fields.Add(new FieldMHz(mhz));
         }
         if (fields.Count > MaxFields)
-            throw new UserInputException($"--at gives {fields.Count} fields; give at most {MaxFields}");
+            throw new UserInputException("--at", $"gives {fields.Count} fields", $"Give at most {MaxFields}");
         return fields;
-    }
-
-    private static FigureFormat FormatOf(string path)
-    {
-        try { return FigureRenderer.FromExtension(path); }
-        catch (ArgumentException e) { throw new UserInputException($"--figure: {e.Message}"); }
     }
 
     private static void PrintTable(TextWriter o, SpinSystemDocument document, FieldPlan plan)
@@ -163,7 +166,7 @@ public static class FieldsCommand
             narrowest = Math.Min(narrowest, render.Min(l => l.FwhmHz));
         }
         if (double.IsInfinity(from))
-            throw new UserInputException($"the system has no {document.System.Observed} lines to draw");
+            throw new UserInputException(document.Path, $"the system has no {document.System.Observed} lines to draw");
         var spanHz = (from - to) * plan.Fields.Max(p => p.Lines.ObserveMHz);
         var points = (int)Math.Clamp(spanHz / narrowest * FigurePointsPerFwhm, 4096, 1 << 20);
         var settings = new SimulationSettings(width, plan.Settings.Shape, from, to, points);

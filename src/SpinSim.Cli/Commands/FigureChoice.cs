@@ -8,19 +8,21 @@ namespace SpinSim.Cli.Commands;
 /// <summary>Options for a figure file: path (format by extension), size in mm or pixels, dpi and font size.</summary>
 public sealed class FigureChoice
 {
-    public Option<string?> Path { get; } = new("--figure") { Description = "Write a figure: .png, .svg or .pdf (chosen by extension)" };
-    public Option<double?> WidthMm { get; } = new("--width-mm") { Description = "Figure width in mm (default 170)" };
-    public Option<double?> HeightMm { get; } = new("--height-mm") { Description = "Figure height in mm (default 110)" };
-    public Option<int?> WidthPx { get; } = new("--width-px") { Description = "Figure width in pixels (instead of mm)" };
-    public Option<int?> HeightPx { get; } = new("--height-px") { Description = "Figure height in pixels (instead of mm)" };
-    public Option<double> Dpi { get; } = new("--dpi") { Description = "Resolution of PNG figures", DefaultValueFactory = _ => 300 };
-    public Option<double> FontSize { get; } = new("--font-size") { Description = "Font size in points", DefaultValueFactory = _ => 9 };
+    public Option<string?> Path { get; } = new("--figure") { Description = "Write a figure: .png, .svg or .pdf (chosen by extension)", HelpName = "FILE" };
+    public Option<double?> WidthMm { get; } = new("--width-mm") { Description = "Figure width in mm (default 170)", HelpName = "MM" };
+    public Option<double?> HeightMm { get; } = new("--height-mm") { Description = "Figure height in mm (default 110)", HelpName = "MM" };
+    public Option<int?> WidthPx { get; } = new("--width-px") { Description = "Figure width in pixels (instead of mm)", HelpName = "PX" };
+    public Option<int?> HeightPx { get; } = new("--height-px") { Description = "Figure height in pixels (instead of mm)", HelpName = "PX" };
+    public Option<double> Dpi { get; } = new("--dpi") { Description = "Resolution of PNG figures", DefaultValueFactory = _ => 300, HelpName = "DPI" };
+    public Option<double> FontSize { get; } = new("--font-size") { Description = "Font size in points", DefaultValueFactory = _ => 9, HelpName = "PT" };
 
     public void AddTo(Command command)
     {
         foreach (var o in new Option[] { Path, WidthMm, HeightMm, WidthPx, HeightPx, Dpi, FontSize }) command.Options.Add(o);
     }
 
+    /// <summary>The figure options, checked (before any work) so that a bad size is refused with nothing written.</summary>
+    /// <exception cref="UserInputException">A size, dpi or font size the renderer cannot honour.</exception>
     public FigureOptions Options(ParseResult parse, string? title = null)
     {
         var options = new FigureOptions
@@ -33,17 +35,24 @@ public sealed class FigureChoice
             FontSizePt = parse.GetValue(FontSize),
             Title = title,
         };
-        try { options.Resolve(); }
-        catch (ArgumentException e) { throw new UserInputException($"figure size: {e.Message}"); }
+        if (options.Problem() is { } problem) throw new UserInputException("figure size", problem);
         return options;
     }
+
+    /// <summary>The format a figure path names by its extension.</summary>
+    /// <exception cref="UserInputException">An extension that is not .png, .svg or .pdf.</exception>
+    public static FigureFormat FormatOf(string path) =>
+        FigureRenderer.TryFromExtension(path, out var format, out var problem) ? format : throw new UserInputException(path, problem);
+
+    /// <summary>Renders <paramref name="model"/> into the staged output <paramref name="path"/>.</summary>
+    public static void Write(StagedOutputs outputs, string path, PlotModel model, FigureOptions options) =>
+        outputs.AddBytes(path, s => FigureRenderer.Render(model, FormatOf(path), options, s));
 
     /// <summary>Renders <paramref name="model"/> to <paramref name="path"/> through a temporary file.</summary>
     public static void Write(string path, PlotModel model, FigureOptions options, IEnumerable<string> inputs)
     {
-        FigureFormat format;
-        try { format = FigureRenderer.FromExtension(path); }
-        catch (ArgumentException e) { throw new UserInputException($"{path}: {e.Message}"); }
-        AtomicFile.WriteBytes(path, s => FigureRenderer.Render(model, format, options, s), inputs);
+        using var outputs = new StagedOutputs(inputs);
+        Write(outputs, path, model, options);
+        outputs.Commit();
     }
 }

@@ -20,34 +20,35 @@ public static class FitCommand
 {
     public static Command Build(CommandIo io)
     {
-        var file = new Argument<string>("system") { Description = "Spin-system file with the starting values (.toml or .json); its [fit] table, if any, is the fit setup" };
+        var file = SystemInput.FileArgument("Spin-system file with the starting values (.toml or .json); its [fit] table, if any, is the fit setup");
         var dataFiles = new Option<string[]>("--data")
         {
             Description = "Measured spectrum (.jdx, .dx, .csv, .tsv, .txt); give it more than once for a joint fit of traces at different fields",
             Required = true,
             AllowMultipleArgumentsPerToken = false,
+            HelpName = "FILE",
         };
-        var setupFile = new Option<string?>("--setup") { Description = "Fit file with a [fit] table; replaces the [fit] table of the system file" };
-        var linewidth = new Option<double?>("--linewidth") { Description = "Starting linewidth (FWHM) in Hz (default: the file's linewidth_hz or 1 Hz)" };
+        var setupFile = new Option<string?>("--setup") { Description = "Fit file with a [fit] table; replaces the [fit] table of the system file", HelpName = "FILE" };
+        var linewidth = new Option<double?>("--linewidth") { Description = "Starting linewidth (FWHM) in Hz (default: the file's linewidth_hz or 1 Hz)", HelpName = "HZ" };
         var shape = TraceChoice.ShapeOption(required: false);
-        var starts = new Option<int?>("--starts") { Description = "Number of starts (the given values plus random perturbations); default 8" };
-        var seed = new Option<int>("--seed") { Description = "Seed for the perturbed starts", DefaultValueFactory = _ => 1 };
-        var report = new Option<string?>("--report") { Description = "Write the fit report as JSON" };
-        var writeSystem = new Option<string?>("--write-system") { Description = "Write the best-fit system as a TOML file that simulate accepts" };
-        var html = new Option<string?>("--html") { Description = "Write a self-contained HTML report with the figure, parameters, warnings and input hashes" };
+        var starts = new Option<int?>("--starts") { Description = "Number of starts (the given values plus random perturbations), 1 to 64; default 8", HelpName = "N" };
+        var seed = new Option<int>("--seed") { Description = "Seed for the perturbed starts", DefaultValueFactory = _ => 1, HelpName = "N" };
+        var report = new Option<string?>("--report") { Description = "Write the fit report as JSON", HelpName = "FILE" };
+        var writeSystem = new Option<string?>("--write-system") { Description = "Write the best-fit system as a TOML file that simulate accepts", HelpName = "FILE" };
+        var html = new Option<string?>("--html") { Description = "Write a self-contained HTML report with the figure, parameters, warnings and input hashes", HelpName = "FILE" };
         var bootstrap = new Option<int>("--bootstrap")
         {
             Description = "After the fit, refit this many block-bootstrap replicates (model plus resampled blocks of neighbouring residuals) " +
                           "and report their scatter as a second standard error that does not assume independent points; 0 (default) for none",
             DefaultValueFactory = _ => 0,
+            HelpName = "N",
         };
-        var quiet = new Option<bool>("--quiet", "-q") { Description = "No progress on stderr" };
         var data = new DataFileOptions();
         var figure = new FigureChoice();
         var engine = new EngineChoice();
         var command = new Command("fit", "Fit shifts, couplings, linewidth, scale and baseline to a measured spectrum by nonlinear least squares")
         {
-            file, dataFiles, setupFile, linewidth, shape, starts, seed, bootstrap, report, writeSystem, html, quiet,
+            file, dataFiles, setupFile, linewidth, shape, starts, seed, bootstrap, report, writeSystem, html,
         };
         data.AddTo(command);
         figure.AddTo(command);
@@ -55,38 +56,47 @@ public static class FitCommand
 
         command.SetAction(parse =>
         {
+            // Every option, input and output target is checked before the fit, so that a bad one never costs a fit
+            // or leaves some outputs written.
             var systemPath = parse.GetValue(file)!;
-            var document = SpinSystemFiles.Read(systemPath);
-            var system = document.System;
-            foreach (var w in document.Warnings) io.Error.WriteLine($"warning: {w}");
+            var (document, system) = SystemInput.Load(io, systemPath);
             var paths = parse.GetValue(dataFiles)!;
+            var setupPath = parse.GetValue(setupFile);
+            var replicates = parse.GetValue(bootstrap);
+            if (replicates is < 0 or 1 or > 10000) throw new UserInputException("--bootstrap", $"must be 0 (none) or from 2 to 10000, got {replicates}");
+            if (parse.GetValue(starts) is { } n && n is < 1 or > 64) throw new UserInputException("--starts", $"must be from 1 to 64, got {n}");
+            var width = parse.GetValue(linewidth) ?? document.DefaultWidth?.Value ?? SimulateCommand.FallbackLinewidthHz;
+            if (!(width > 0 && width <= SpinSim.Core.Model.SpinSystemRules.MaxLinewidthHz))
+                throw new UserInputException("--linewidth", $"must be above 0 and at most {SpinSim.Core.Model.SpinSystemRules.MaxLinewidthHz:G3} Hz, got {width}");
+            var engineOptions = engine.Read(parse);
+            var inputs = new[] { systemPath }.Concat(paths).Concat(setupPath is null ? [] : [setupPath]).ToArray();
+            using var outputs = new StagedOutputs(inputs);
+            var (reportPath, outSystem, figurePath, htmlPath) = (parse.GetValue(report), parse.GetValue(writeSystem), parse.GetValue(figure.Path), parse.GetValue(html));
+            foreach (var target in new[] { reportPath, outSystem, figurePath, htmlPath }) if (target is not null) outputs.Check(target);
+            if (figurePath is not null) FigureChoice.FormatOf(figurePath);
+            var figureOptions = figure.Options(parse, $"Fit of {Path.GetFileName(systemPath)}");
+
             var delimited = data.Read(parse);
             var traces = new List<SpectrumTrace>();
             foreach (var p in paths)
             {
                 var t = SpectrumFiles.Read(p, delimited);
-                foreach (var w in t.Origin.Warnings) io.Error.WriteLine($"warning: {p}: {w}");
+                foreach (var w in t.Origin.Warnings) io.Warn($"{p}: {w}");
                 if (t.Nucleus != system.Observed.Symbol)
-                    throw new UserInputException($"{p}: the trace is a {t.Nucleus} spectrum but the system observes {system.Observed}");
+                    throw new UserInputException(p, $"the trace is a {t.Nucleus} spectrum but the system observes {system.Observed}");
                 if (t.ObserveMHz is null)
                 {
                     var mhz = system.Observed.ObserveMHz(system.Field);
-                    io.Error.WriteLine($"warning: {p}: no observe frequency in the file; using the system's {mhz:0.###} MHz (give --observe-mhz to set it)");
+                    io.Warn($"{p}: no observe frequency in the file; using the system's {mhz:0.###} MHz (give --observe-mhz to set it)");
                     t = new SpectrumTrace(t.ShiftPpm.ToArray(), t.Intensity.ToArray(), mhz, t.Nucleus, t.Origin);
                 }
                 traces.Add(t);
             }
 
-            var section = parse.GetValue(setupFile) is { } setupPath ? SpinSystemToml.ReadFitFile(setupPath) : document.Fit;
+            var section = setupPath is not null ? SpinSystemToml.ReadFitFile(setupPath) : document.Fit;
             var settings = FitSetupReader.Read(section, system, traces.Count);
             var setup = settings.Setup;
-            if (parse.GetValue(starts) is { } n)
-            {
-                if (n is < 1 or > 64) throw new UserInputException($"--starts must be from 1 to 64, got {n}");
-                setup = setup with { Starts = n };
-            }
-            var width = parse.GetValue(linewidth) ?? document.DefaultWidth?.Value ?? SimulateCommand.FallbackLinewidthHz;
-            if (!(width > 0 && double.IsFinite(width))) throw new UserInputException($"--linewidth must be above 0 Hz, got {width}");
+            if (parse.GetValue(starts) is { } count) setup = setup with { Starts = count };
             var lineshape = parse.GetValue(shape) is { } named ? TraceChoice.ShapeFrom(named, 0.5) : settings.Shape ?? Lineshape.Lorentzian;
 
             var datasets = new List<FitDataset>();
@@ -95,48 +105,38 @@ public static class FitCommand
                 var regions = setup.Regions ?? FitSetup.DefaultRegions(system, traces[d].ObserveMHz!.Value, width);
                 var covered = traces[d].ShiftPpm.Count(x => regions.Any(r => r.Contains(x)) && !setup.Exclude.Any(r => r.Contains(x)));
                 if (covered < 10)
-                    throw new UserInputException($"{paths[d]}: only {covered} points of the trace lie in the fitted regions ({string.Join("; ", regions)}); " +
-                                                 "check the file's ppm axis or give regions_ppm in the [fit] table");
+                    throw new UserInputException(paths[d], $"only {covered} points of the trace lie in the fitted regions ({string.Join("; ", regions)})",
+                        "Check the file's ppm axis or give regions_ppm in the [fit] table");
                 datasets.Add(new FitDataset(traces[d], regions, setup.Exclude));
             }
             var problem = new SpectrumFitProblem(system, datasets, setup.BuildParameters(system, traces.Count, width), setup.Ties, lineshape);
 
-            var progress = parse.GetValue(quiet) ? null : new ThrottledProgress(io.Error);
-            SpectrumFitResult result;
-            try
-            {
-                result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed),
-                    Progress: progress, Cancel: io.Cancel, Engine: engine.Read(parse)));
-            }
-            catch (ArgumentException e) { throw new UserInputException(e.Message); }
+            var progress = io.Verbosity == Verbosity.Quiet ? null : new ThrottledProgress(io.Error);
+            var result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed),
+                Progress: progress, Cancel: io.Cancel, Engine: engineOptions));
             progress?.Finish();
-            var replicates = parse.GetValue(bootstrap);
-            if (replicates is < 0 or 1 or > 10000) throw new UserInputException($"--bootstrap must be 0 (none) or from 2 to 10000, got {replicates}");
             if (replicates > 0 && !result.Stopped)
             {
-                if (!parse.GetValue(quiet)) io.Error.WriteLine($"  bootstrap: {replicates} refits (Ctrl+C skips them)");
+                io.Status($"  bootstrap: {replicates} refits (Ctrl+C skips them)");
                 try
                 {
                     result = result.WithBootstrap(SpectrumBootstrap.Run(problem, result, new BootstrapOptions(replicates, Seed: parse.GetValue(seed),
-                        Cancel: io.Cancel, Engine: engine.Read(parse))));
+                        Cancel: io.Cancel, Engine: engineOptions)));
                 }
                 catch (OperationCanceledException)
                 {
-                    io.Error.WriteLine("warning: the bootstrap was stopped; no bootstrap standard errors are reported");
+                    io.Warn("the bootstrap was stopped; no bootstrap standard errors are reported");
                 }
             }
 
             PrintReport(io.Out, result, systemPath, paths);
+            foreach (var w in result.Warnings) io.Warn(w);
 
-            var inputs = new[] { systemPath }.Concat(paths).Concat(parse.GetValue(setupFile) is { } sp ? [sp] : Array.Empty<string>()).ToArray();
             var hashes = inputs.Select(p => (Path.GetFileName(p), Sha256(p))).ToArray();
             var created = DateTimeOffset.UtcNow;
-            if (parse.GetValue(report) is { } reportPath)
-            {
-                AtomicFile.Write(reportPath, w => w.Write(FitReportJson.Write(result, hashes, Versions.Current, created)), inputs);
-                io.Out.WriteLine($"report written to {reportPath}");
-            }
-            if (parse.GetValue(writeSystem) is { } outSystem)
+            if (reportPath is not null)
+                outputs.Add(reportPath, w => w.Write(FitReportJson.Write(result, hashes, Versions.Current, created)));
+            if (outSystem is not null)
             {
                 var header = new[]
                 {
@@ -144,25 +144,21 @@ public static class FitCommand
                     $"fitted to {string.Join(", ", paths.Select(Path.GetFileName))}; start values from {Path.GetFileName(systemPath)}",
                     $"converged: {result.Converged}; rms {result.Rms:G4} of the tallest point; see the fit report for standard errors",
                 };
-                AtomicFile.Write(outSystem, w => w.Write(SpinSystemToml.Write(result.FittedSystem, result.FittedWidth ?? document.DefaultWidth, header)), inputs);
-                io.Out.WriteLine($"best-fit system written to {outSystem}");
+                outputs.Add(outSystem, w => w.Write(SpinSystemToml.Write(result.FittedSystem, result.FittedWidth ?? document.DefaultWidth, header)));
             }
-            var figureOptions = figure.Options(parse, $"Fit of {Path.GetFileName(systemPath)}");
-            if (parse.GetValue(figure.Path) is { } figurePath)
-            {
-                FigureChoice.Write(figurePath, FitFigure.Create(FigureData(result, systemPath), figureOptions), figureOptions, inputs);
-                io.Out.WriteLine($"figure written to {figurePath}");
-            }
-            if (parse.GetValue(html) is { } htmlPath)
+            if (figurePath is not null)
+                FigureChoice.Write(outputs, figurePath, FitFigure.Create(FigureData(result, systemPath), figureOptions), figureOptions);
+            if (htmlPath is not null)
             {
                 var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(FitFigure.Create(FigureData(result, systemPath), figureOptions), FigureFormat.Svg, figureOptions));
                 var page = HtmlFitReport.Render(new FitReportData(
                     $"SpinSim fit of {Path.GetFileName(systemPath)}", svg, Rows(result), result.Warnings, hashes, Versions.Current, created,
                     Statistics(result), new ParameterCorrelation(result.FreeNames, result.Correlation)) { ErrorHeading = ErrorHeading(result) });
-                AtomicFile.Write(htmlPath, w => w.Write(page), inputs);
-                io.Out.WriteLine($"HTML report written to {htmlPath}");
+                outputs.Add(htmlPath, w => w.Write(page));
             }
-            return result.Stopped ? SpinSimCli.UserError : SpinSimCli.Success;
+            foreach (var written in outputs.Commit()) io.Status($"written: {written}");
+            // A fit stopped by the user keeps its best point and writes it, but says by its exit code that it did not finish.
+            return result.Stopped ? ExitCodes.InputError : ExitCodes.Success;
         });
         return command;
     }
@@ -229,7 +225,6 @@ public static class FitCommand
             o.WriteLine($"Bootstrap errors (in brackets): scatter of {b.Converged} refits to the model plus residuals resampled in blocks of {b.BlockPoints} points.");
         else
             o.WriteLine("Give --bootstrap N for errors that allow for the correlation (a block bootstrap of N refits).");
-        foreach (var w in r.Warnings) o.WriteLine($"warning: {w}");
     }
 
     private static string Sha256(string path)

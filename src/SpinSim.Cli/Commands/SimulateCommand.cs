@@ -20,48 +20,62 @@ public static class SimulateCommand
 
     public static Command Build(CommandIo io)
     {
-        var file = new Argument<string>("system") { Description = "Spin-system file (.toml or .json)" };
-        var field = new Option<double?>("--field") { Description = "Spectrometer 1H frequency in MHz; overrides the file's field" };
-        var lines = new Option<string?>("--lines") { Description = "Write the transition table (frequency_hz, shift_ppm, intensity, origin) to this CSV file" };
-        var spectrum = new Option<string?>("--spectrum") { Description = "Write the trace: .csv (shift_ppm, intensity) or .jdx/.dx (JCAMP-DX 5.01)" };
+        var file = SystemInput.FileArgument();
+        var field = SystemInput.FieldOption();
+        var lines = new Option<string?>("--lines") { Description = "Write the transition table (frequency_hz, shift_ppm, intensity, origin) to this CSV file", HelpName = "FILE" };
+        var spectrum = new Option<string?>("--spectrum") { Description = "Write the trace: .csv (shift_ppm, intensity) or .jdx/.dx (JCAMP-DX 5.01)", HelpName = "FILE" };
         var engine = new EngineChoice();
         var shape = new TraceChoice();
         var jcampForm = new Option<string>("--jcamp-form") { Description = "JCAMP-DX data form: affn (plain numbers) or difdup (compressed)", DefaultValueFactory = _ => "affn" };
         jcampForm.AcceptOnlyFromAmong("affn", "difdup");
-        var noise = new Option<double>("--noise") { Description = "Add Gaussian noise with this standard deviation, as a fraction of the tallest point (synthetic data for demos and tests)" };
-        var seed = new Option<int>("--seed") { Description = "Seed of the noise generator", DefaultValueFactory = _ => 1 };
-        var phaseError = new Option<double>("--phase-error") { Description = "Mix in dispersion as a zero-order phase error of this many degrees (synthetic data for demos and tests)" };
-        var verbose = new Option<bool>("--verbose", "-v") { Description = "Say which linear-algebra backend ran, how the system was split and what it cost" };
+        var noise = new Option<double>("--noise") { Description = "Add Gaussian noise with this standard deviation, as a fraction of the tallest point (synthetic data for demos and tests)", HelpName = "FRACTION" };
+        var seed = new Option<int>("--seed") { Description = "Seed of the noise generator", DefaultValueFactory = _ => 1, HelpName = "N" };
+        var phaseError = new Option<double>("--phase-error") { Description = "Mix in dispersion as a zero-order phase error of this many degrees, -180 to 180 (synthetic data for demos and tests)", HelpName = "DEG" };
         var sticks = new Option<bool>("--sticks") { Description = "In the figure, draw the transitions as sticks below the trace" };
         var labels = new Option<bool>("--labels") { Description = "In the figure, label the nuclei at their shifts" };
         var figure = new FigureChoice();
         var command = new Command("simulate", "Simulate the spectrum of a spin system at a field: exact transitions, trace and integrals")
         {
-            file, field, lines, spectrum, jcampForm, noise, seed, phaseError, verbose, sticks, labels,
+            file, field, lines, spectrum, jcampForm, noise, seed, phaseError, sticks, labels,
         };
         figure.AddTo(command);
         engine.AddTo(command);
         shape.AddTo(command);
         command.SetAction(parse =>
         {
+            // Everything is checked before any work, so that a bad option never leaves half the outputs behind.
             var path = parse.GetValue(file)!;
-            var document = SpinSystemFiles.Read(path);
-            var system = document.System;
-            if (parse.GetValue(field) is { } mhz)
-            {
-                if (!double.IsFinite(mhz) || mhz <= 0) throw new UserInputException($"--field must be above 0 MHz, got {mhz}");
-                system = system.WithField(new FieldMHz(mhz));
-            }
-            foreach (var w in document.Warnings) io.Error.WriteLine($"warning: {w}");
-
+            var (document, system) = SystemInput.Load(io, path, parse.GetValue(field));
             var sigmaFraction = parse.GetValue(noise);
+            if (!(sigmaFraction >= 0 && double.IsFinite(sigmaFraction))) throw new UserInputException("--noise", $"must be 0 or above, got {sigmaFraction}");
             var phase = parse.GetValue(phaseError);
-            if (sigmaFraction < 0 || !double.IsFinite(sigmaFraction)) throw new UserInputException($"--noise must be 0 or above, got {sigmaFraction}");
+            if (!(Math.Abs(phase) <= 180)) throw new UserInputException("--phase-error", $"must be between -180 and 180 degrees, got {phase}");
             var options = engine.Read(parse);
+            var settings = shape.Read(parse, document);
+            var inputs = new[] { path };
+            using var outputs = new StagedOutputs(inputs);
+            var figurePath = parse.GetValue(figure.Path);
+            var figureOptions = figurePath is null ? null : figure.Options(parse, $"{Title(system)}, {system.Field.Value:0.###} MHz");
+            if (figurePath is not null)
+            {
+                FigureChoice.FormatOf(figurePath);
+                outputs.Check(figurePath);
+            }
+            var linesPath = parse.GetValue(lines);
+            if (linesPath is not null) outputs.Check(linesPath);
+            var spectrumPath = parse.GetValue(spectrum);
+            if (spectrumPath is not null)
+            {
+                TraceFormatOf(spectrumPath);
+                outputs.Check(spectrumPath);
+            }
+            if (system.ObservedNucleusCount == 0)
+                throw new UserInputException(path, $"the system has no {system.Observed} nuclei, so there is no {system.Observed} spectrum to simulate",
+                    $"Add {system.Observed} nuclei, or set observe to an isotope the system has");
+
             var started = System.Diagnostics.Stopwatch.StartNew();
             var result = SpectrumEngine.Compute(system, options, io.Cancel);
             var elapsed = started.Elapsed;
-            var settings = shape.Read(parse, document);
             var simulated = SpectrumSimulator.Simulate(system, result, settings);
 
             io.Out.WriteLine($"{Title(system)} at {system.Field.Value:0.###} MHz: {result.Lines.Count} lines, " +
@@ -70,32 +84,22 @@ public static class SimulateCommand
             io.Out.WriteLine("integrals (normalised to the number of observed nuclei):");
             foreach (var integral in simulated.Integrals)
                 io.Out.WriteLine($"  {integral.Id,-10} {integral.ShiftPpm,8:0.000} ppm  {integral.Value,7:0.000}  (nuclei: {integral.Count})");
-            if (parse.GetValue(verbose))
-            {
-                io.Out.WriteLine($"backend: {result.Backend}");
-                foreach (var note in result.Notes) io.Out.WriteLine($"engine: {note}");
-                io.Out.WriteLine($"blocks: {result.Blocks}, largest {result.LargestBlock} states; {elapsed.TotalMilliseconds:0} ms");
-                io.Out.WriteLine($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; missing (numerical zeros): {result.DroppedIntensity:G3}");
-                if (simulated.NeglectedTailFraction > 0)
-                    io.Out.WriteLine($"lines evaluated within +-{settings.CutoffFwhm} widths; the Lorentzian tails left out hold {simulated.NeglectedTailFraction:P2} of each line's area");
-            }
+            io.Detail($"backend: {result.Backend}");
+            foreach (var note in result.Notes) io.Detail($"engine: {note}");
+            io.Detail($"blocks: {result.Blocks}, largest {result.LargestBlock} states; {elapsed.TotalMilliseconds:0} ms");
+            io.Detail($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; missing (numerical zeros): {result.DroppedIntensity:G3}");
+            if (simulated.NeglectedTailFraction > 0)
+                io.Detail($"lines evaluated within +-{settings.CutoffFwhm} widths; the Lorentzian tails left out hold {simulated.NeglectedTailFraction:P2} of each line's area");
 
-            var inputs = new[] { path };
-            if (parse.GetValue(figure.Path) is { } figurePath)
+            if (figurePath is not null)
             {
-                var figureOptions = figure.Options(parse, $"{Title(system)}, {system.Field.Value:0.###} MHz");
                 var model = SpinSim.Figures.Plots.SpectrumFigure.Simulated(simulated.Trace,
                     parse.GetValue(sticks) ? SpinSim.Figures.Plots.SpectrumFigure.SticksFrom(result) : null,
-                    parse.GetValue(labels) ? SpinSim.Figures.Plots.SpectrumFigure.LabelsFrom(system) : null, figureOptions);
-                FigureChoice.Write(figurePath, model, figureOptions, inputs);
-                io.Out.WriteLine($"figure written to {figurePath}");
+                    parse.GetValue(labels) ? SpinSim.Figures.Plots.SpectrumFigure.LabelsFrom(system) : null, figureOptions!);
+                FigureChoice.Write(outputs, figurePath, model, figureOptions!);
             }
-            if (parse.GetValue(lines) is { } linesPath)
-            {
-                AtomicFile.Write(linesPath, w => LineListCsv.Write(w, result, system), inputs);
-                io.Out.WriteLine($"lines written to {linesPath}");
-            }
-            if (parse.GetValue(spectrum) is { } spectrumPath)
+            if (linesPath is not null) outputs.Add(linesPath, w => LineListCsv.Write(w, result, system));
+            if (spectrumPath is not null)
             {
                 var trace = simulated.Trace;
                 var comments = new List<string>
@@ -105,7 +109,6 @@ public static class SimulateCommand
                 };
                 if (phase != 0)
                 {
-                    if (!double.IsFinite(phase) || Math.Abs(phase) > 180) throw new UserInputException($"--phase-error must be between -180 and 180 degrees, got {phase}");
                     var mixed = PhaseError.Apply(trace.Intensity.ToArray(), SpectrumSimulator.RenderLines(system, result, settings.DefaultWidth), simulated.Grid, settings.Shape, phase);
                     trace = new SpectrumTrace(trace.ShiftPpm.ToArray(), mixed, trace.ObserveMHz, trace.Nucleus,
                         TraceOrigin.Describe(trace.Origin.Source + " with a synthetic phase error", "simulated", trace.Origin.Form));
@@ -120,30 +123,32 @@ public static class SimulateCommand
                         TraceOrigin.Describe(trace.Origin.Source + " with synthetic noise", "simulated", trace.Origin.Form));
                     comments.Add($"synthetic Gaussian noise added: standard deviation {sigma:G4} ({sigmaFraction:G3} of the tallest point), seed {parse.GetValue(seed)}");
                 }
-                WriteTrace(spectrumPath, trace, parse.GetValue(jcampForm) == "difdup" ? JcampForm.DifDup : JcampForm.Affn, comments, inputs);
-                io.Out.WriteLine($"spectrum written to {spectrumPath}");
+                WriteTrace(outputs, spectrumPath, trace, parse.GetValue(jcampForm) == "difdup" ? JcampForm.DifDup : JcampForm.Affn, comments);
             }
-            return 0;
+            foreach (var written in outputs.Commit()) io.Status($"written: {written}");
+            return ExitCodes.Success;
         });
         return command;
     }
 
     internal static string Title(SpinSystem system) => string.IsNullOrEmpty(system.Title) ? "spin system" : system.Title;
 
-    /// <summary>Writes a trace in the format its extension names.</summary>
-    internal static void WriteTrace(string path, SpectrumTrace trace, JcampForm form, IReadOnlyList<string> comments, IEnumerable<string> inputs)
+    private enum TraceFormat { Csv, Jcamp }
+
+    /// <summary>The trace format a path names by its extension.</summary>
+    /// <exception cref="UserInputException">An extension that is not .csv, .jdx, .dx or .jcamp.</exception>
+    private static TraceFormat TraceFormatOf(string path) => Path.GetExtension(path).ToLowerInvariant() switch
     {
-        switch (Path.GetExtension(path).ToLowerInvariant())
-        {
-            case ".csv":
-                AtomicFile.Write(path, w => SpectrumCsvWriter.Write(trace, w, comments), inputs);
-                break;
-            case ".jdx" or ".dx" or ".jcamp":
-                AtomicFile.Write(path, w => JcampWriter.Write(trace, w, form, comments), inputs);
-                break;
-            default:
-                throw new UserInputException($"{path}: unknown spectrum file type; use .csv, .jdx or .dx");
-        }
+        ".csv" => TraceFormat.Csv,
+        ".jdx" or ".dx" or ".jcamp" => TraceFormat.Jcamp,
+        var ext => throw new UserInputException(path, $"unknown spectrum file type \"{ext}\"", "Use .csv, .jdx or .dx"),
+    };
+
+    /// <summary>Stages a trace in the format its extension names.</summary>
+    internal static void WriteTrace(StagedOutputs outputs, string path, SpectrumTrace trace, JcampForm form, IReadOnlyList<string> comments)
+    {
+        if (TraceFormatOf(path) == TraceFormat.Csv) outputs.Add(path, w => SpectrumCsvWriter.Write(trace, w, comments));
+        else outputs.Add(path, w => JcampWriter.Write(trace, w, form, comments));
     }
 }
 
@@ -154,6 +159,7 @@ public sealed class EngineChoice
     public Option<double?> SplitThreshold { get; } = new("--split-threshold")
     {
         Description = "Always split at this |J / delta nu| (default: exact while the system is small, else split at 0.05)",
+        HelpName = "RATIO",
     };
 
     public void AddTo(Command command)
@@ -165,8 +171,8 @@ public sealed class EngineChoice
     public EngineOptions Read(ParseResult parse)
     {
         var threshold = parse.GetValue(SplitThreshold);
-        if (parse.GetValue(Exact) && threshold is not null) throw new UserInputException("--exact and --split-threshold exclude each other; give one");
-        if (threshold is { } t && !(t > 0 && double.IsFinite(t))) throw new UserInputException($"--split-threshold must be above 0, got {t}");
+        if (parse.GetValue(Exact) && threshold is not null) throw new UserInputException("--exact and --split-threshold", "exclude each other", "Give one of them");
+        if (threshold is { } t && !(t > 0 && double.IsFinite(t))) throw new UserInputException("--split-threshold", $"must be above 0, got {t}");
         if (parse.GetValue(Exact)) return EngineOptions.Default with { Splitting = ClusterSplitting.Exact };
         return threshold is { } s ? EngineOptions.Default with { Splitting = ClusterSplitting.Split, WeakCouplingRatio = s } : EngineOptions.Default;
     }
@@ -175,17 +181,18 @@ public sealed class EngineChoice
 /// <summary>Options that shape the trace: window, points, widths and lineshape.</summary>
 public sealed class TraceChoice
 {
-    public Option<double?> From { get; } = new("--from") { Description = "High-ppm (left) end of the window (default: all lines plus a margin)" };
-    public Option<double?> To { get; } = new("--to") { Description = "Low-ppm (right) end of the window" };
-    public Option<int> Points { get; } = new("--points") { Description = "Points of the trace", DefaultValueFactory = _ => 65536 };
-    public Option<double?> Linewidth { get; } = new("--linewidth") { Description = "Default full width at half maximum in Hz (nuclei with their own linewidth_hz keep it)" };
+    public Option<double?> From { get; } = new("--from") { Description = "High-ppm (left) end of the window (default: all lines plus a margin)", HelpName = "PPM" };
+    public Option<double?> To { get; } = new("--to") { Description = "Low-ppm (right) end of the window", HelpName = "PPM" };
+    public Option<int> Points { get; } = new("--points") { Description = "Points of the trace", DefaultValueFactory = _ => 65536, HelpName = "N" };
+    public Option<double?> Linewidth { get; } = new("--linewidth") { Description = "Default full width at half maximum in Hz (nuclei with their own linewidth_hz keep it)", HelpName = "HZ" };
     public Option<string> Shape { get; } = ShapeOption(required: true);
     public Option<double> GaussianShare { get; } = new("--gaussian-share")
     {
         Description = "For --shape voigt: Gaussian share f_G / (f_L + f_G) of the width, 0 to 1",
         DefaultValueFactory = _ => 0.5,
+        HelpName = "FRACTION",
     };
-    public Option<double> ReferenceOffset { get; } = new("--reference-offset") { Description = "Shift the whole axis by this many ppm (imitates a referencing error)" };
+    public Option<double> ReferenceOffset { get; } = new("--reference-offset") { Description = "Shift the whole axis by this many ppm (imitates a referencing error)", HelpName = "PPM" };
 
     /// <summary>A --shape option accepting <see cref="Lineshape.Names"/>; with a default (the first name) unless the caller has its own.</summary>
     internal static Option<string> ShapeOption(bool required)
@@ -204,14 +211,17 @@ public sealed class TraceChoice
     public SimulationSettings Read(ParseResult parse, SpinSystemDocument document)
     {
         var width = parse.GetValue(Linewidth) ?? document.DefaultWidth?.Value ?? SimulateCommand.FallbackLinewidthHz;
-        if (!(width > 0 && double.IsFinite(width))) throw new UserInputException($"--linewidth must be above 0 Hz, got {width}");
+        if (!(width > 0 && width <= SpinSystemRules.MaxLinewidthHz)) throw new UserInputException("--linewidth", $"must be above 0 and at most {SpinSystemRules.MaxLinewidthHz:G3} Hz, got {width}");
         var points = parse.GetValue(Points);
-        if (points < 2 || points > 16_777_216) throw new UserInputException($"--points must be between 2 and 16777216, got {points}");
+        if (points < 2 || points > 16_777_216) throw new UserInputException("--points", $"must be between 2 and 16777216, got {points}");
         var share = parse.GetValue(GaussianShare);
-        if (!(share >= 0 && share <= 1)) throw new UserInputException($"--gaussian-share must be between 0 and 1, got {share}");
+        if (!(share >= 0 && share <= 1)) throw new UserInputException("--gaussian-share", $"must be between 0 and 1, got {share}");
         var shape = ShapeFrom(parse.GetValue(Shape)!, share);
         var (from, to) = (parse.GetValue(From), parse.GetValue(To));
-        if (from is { } f && to is { } t && f == t) throw new UserInputException("--from and --to must differ");
+        foreach (var (name, value) in new[] { ("--from", from), ("--to", to), ("--reference-offset", (double?)parse.GetValue(ReferenceOffset)) })
+            if (value is { } v && !(Math.Abs(v) <= SpinSystemRules.MaxAbsShiftPpm))
+                throw new UserInputException(name, $"must be a shift within +-{SpinSystemRules.MaxAbsShiftPpm:G3} ppm, got {v}");
+        if (from is { } f && to is { } t && f == t) throw new UserInputException("--from and --to", "must differ");
         return new SimulationSettings(new WidthHz(width), shape, from, to, points, parse.GetValue(ReferenceOffset));
     }
 

@@ -1,7 +1,7 @@
 using System.CommandLine;
 using SpinSim.Core.Model;
 using SpinSim.Figures.Plots;
-using SpinSim.Formats.SpinSystems;
+using SpinSim.Formats.Output;
 
 namespace SpinSim.Cli.Commands;
 
@@ -16,24 +16,27 @@ public static class TreeCommand
 
     public static Command Build(CommandIo io)
     {
-        var file = new Argument<string>("system") { Description = "Spin-system file (.toml or .json)" };
-        var nucleus = new Argument<string>("nucleus") { Description = "Id of the nucleus (or equivalent set) whose splitting diagram to draw" };
-        var field = new Option<double?>("--field") { Description = "Spectrometer 1H frequency in MHz; overrides the file's field" };
+        var file = SystemInput.FileArgument();
+        var nucleus = new Argument<string>("nucleus") { Description = "Id of the nucleus (or equivalent set) whose splitting diagram to draw", HelpName = "ID" };
+        var field = SystemInput.FieldOption();
         var figure = new FigureChoice();
         var command = new Command("tree", "Draw the first-order splitting diagram (coupling tree) of one nucleus and say whether first order holds") { file, nucleus, field };
         figure.AddTo(command);
         command.SetAction(parse =>
         {
             var path = parse.GetValue(file)!;
-            var system = SpinSystemFiles.Read(path).System;
-            if (parse.GetValue(field) is { } mhz)
-            {
-                if (!(mhz > 0 && double.IsFinite(mhz))) throw new UserInputException($"--field must be above 0 MHz, got {mhz}");
-                system = system.WithField(new SpinSim.Core.Units.FieldMHz(mhz));
-            }
+            var (_, system) = SystemInput.Load(io, path, parse.GetValue(field));
             var id = parse.GetValue(nucleus)!;
             var e = system.IndexOf(id);
-            if (e < 0) throw new UserInputException($"{path}: no nucleus \"{id}\"; the ids are {string.Join(", ", system.Nuclei.Select(n => n.Id))}");
+            if (e < 0) throw new UserInputException(path, $"no nucleus \"{id}\"", $"The ids are {string.Join(", ", system.Nuclei.Select(n => n.Id))}");
+            var figurePath = parse.GetValue(figure.Path);
+            var options = figurePath is null ? null : figure.Options(parse, $"Splitting of {id}, first order");
+            using var outputs = new StagedOutputs([path]);
+            if (figurePath is not null)
+            {
+                FigureChoice.FormatOf(figurePath);
+                outputs.Check(figurePath);
+            }
             var j = system.CouplingMatrixHz();
             var partners = Enumerable.Range(0, system.Nuclei.Count).Where(p => p != e && j[e, p] != 0)
                 .Select(p => (Partner: system.Nuclei[p].Id, JHz: j[e, p], Count: system.Nuclei[p].Count, Index: p))
@@ -46,15 +49,12 @@ public static class TreeCommand
                 var ratio = sameIsotope ? Math.Abs(system.FrequencyHz(e) - system.FrequencyHz(p.Index)) / Math.Abs(p.JHz) : double.PositiveInfinity;
                 io.Out.WriteLine($"  J to {p.Partner} (x{p.Count}) = {p.JHz:0.###} Hz{(sameIsotope ? $", |dnu/J| = {ratio:0.##}" : ", heteronuclear")}");
                 if (ratio < FirstOrderRatio)
-                    io.Out.WriteLine($"  warning: |dnu/J| to {p.Partner} is below {FirstOrderRatio}: the real pattern is second order and the diagram is only a guide; use simulate");
+                    io.Warn($"|dnu/J| to {p.Partner} is below {FirstOrderRatio}: the real pattern is second order and the diagram is only a guide; use simulate");
             }
-            if (parse.GetValue(figure.Path) is { } figurePath)
-            {
-                var options = figure.Options(parse, $"Splitting of {id}, first order");
-                FigureChoice.Write(figurePath, CouplingTreeFigure.Create(id, system.FrequencyHz(e), partners.Select(p => (p.Partner, p.JHz, p.Count)).ToList(), options), options, [path]);
-                io.Out.WriteLine($"figure written to {figurePath}");
-            }
-            return 0;
+            if (figurePath is not null)
+                FigureChoice.Write(outputs, figurePath, CouplingTreeFigure.Create(id, system.FrequencyHz(e), partners.Select(p => (p.Partner, p.JHz, p.Count)).ToList(), options!), options!);
+            foreach (var written in outputs.Commit()) io.Status($"written: {written}");
+            return ExitCodes.Success;
         });
         return command;
     }

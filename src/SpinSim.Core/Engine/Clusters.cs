@@ -151,7 +151,7 @@ public static class ClusterPartition
             {
                 var count = system.Nuclei[spectators[k]].Count;
                 var m = count / 2.0 - choice[k];
-                weight *= Binomial(count, choice[k]);
+                weight *= (double)CompositeSpins.Binomial(count, choice[k]);
                 for (var c = 0; c < cluster.Entries.Length; c++) shift[c] += j[cluster.Entries[c], spectators[k]] * m;
             }
             var key = string.Join(",", shift.Select(s => Math.Round(s, 9).ToString("R", System.Globalization.CultureInfo.InvariantCulture)));
@@ -167,10 +167,4 @@ public static class ClusterPartition
     /// <summary>How many times the cluster is diagonalised: its distinct spectator configurations.</summary>
     public static int SpectatorConfigurationCount(SpinSystem system, Cluster cluster) => SpectatorConfigurations(system, cluster).Count;
 
-    private static double Binomial(int n, int k)
-    {
-        double r = 1;
-        for (var i = 1; i <= k; i++) r = r * (n - k + i) / i;
-        return r;
-    }
 }

@@ -1,3 +1,4 @@
+using SpinSim.Core.Errors;
 using SpinSim.Core.Model;
 
 namespace SpinSim.Core.Engine;
@@ -86,9 +87,10 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
 }
 
 /// <summary>The system is too large for the memory budget; the message states the size and what to do.</summary>
-public sealed class SystemTooLargeException(ResourceEstimate estimate, long budgetBytes) : Exception(
+public sealed class SystemTooLargeException(ResourceEstimate estimate, long budgetBytes) : InputException(null, null,
     $"this spin system needs a block of {estimate.LargestBlock} states and about {estimate.WorkingBytes / (1L << 30):0.##} GiB of working memory, " +
-    $"more than the budget of {budgetBytes / (double)(1L << 30):0.##} GiB. Merge magnetically equivalent nuclei into one entry with a count " +
+    $"more than the budget of {budgetBytes / (double)(1L << 30):0.##} GiB",
+    "Merge magnetically equivalent nuclei into one entry with a count " +
     "(a methyl is one entry with count = 3), or let SpinSim split weakly coupled parts (do not use --exact; lower the splitting threshold)")
 {
     public ResourceEstimate Estimate { get; } = estimate;

@@ -154,7 +154,7 @@ public static class SpectrumEngine
             for (var c = 0; c < entries; c++)
             {
                 var spin = options[c][choice[c]];
-                weight *= spin.Multiplicity;
+                weight *= spin.Weight;
                 if (spin.TwiceF == 0) continue; // a total spin of 0 neither flips nor shifts anything
                 var e = members[c];
                 var n = system.Nuclei[e];

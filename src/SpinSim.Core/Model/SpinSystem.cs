@@ -30,6 +30,9 @@ public sealed record SpinSystem
     public IReadOnlyList<Nucleus> Nuclei { get; }
     public IReadOnlyList<Coupling> Couplings { get; }
 
+    /// <summary>Legal but implausible values (see <see cref="SpinSystemRules.Warnings"/>), found when the system was made.</summary>
+    public IReadOnlyList<SpinSystemProblem> Warnings { get; }
+
     private readonly Dictionary<string, int> _index;
 
     private SpinSystem(string title, FieldMHz field, Isotope observed, IReadOnlyList<Nucleus> nuclei, IReadOnlyList<Coupling> couplings)
@@ -40,6 +43,7 @@ public sealed record SpinSystem
         Nuclei = nuclei;
         Couplings = couplings;
         _index = nuclei.Select((n, i) => (n.Id, i)).ToDictionary(t => t.Id, t => t.i, StringComparer.Ordinal);
+        Warnings = SpinSystemRules.Warnings(this);
     }
 
     public static SpinSystem Create(FieldMHz field, IEnumerable<Nucleus> nuclei, IEnumerable<Coupling> couplings,

@@ -293,7 +293,8 @@ public static class FieldPlanner
             var largest = listed[^1];
             var ratio = at(largest).Clusters[index].MinDeltaNuOverJ;
             // The deviation of a cluster without pairs of different shift does not change with field.
-            var limitField = ratio is { } r ? largest * Math.Max(1, LimitRatio / r) : largest;
+            // Capped at the largest field a spin system may have; the deviation there is as close to the limit as it gets.
+            var limitField = ratio is { } r ? Math.Min(largest * Math.Max(1, LimitRatio / r), Math.Max(largest, SpinSystemRules.MaxFieldMHz)) : largest;
             var limit = Deviation(limitField);
             if (limit > tolerance)
                 return new(cluster, FirstOrderReach.NotAtAnyField, null, null, new FieldMHz(largest), Deviation(largest), limit);

@@ -1,3 +1,4 @@
+using SpinSim.Core.Errors;
 using SpinSim.Core.Fitting.Spectral;
 using SpinSim.Core.Model;
 using SpinSim.Core.Spectrum;
@@ -6,12 +7,7 @@ using SpinSim.Formats.SpinSystems;
 namespace SpinSim.Formats.Fitting;
 
 /// <summary>A fit setup that cannot be used: names the file, the line, and the fix.</summary>
-public sealed class FitSetupException(string path, int? line, string problem, string fix)
-    : Exception($"{path}{(line is { } l ? $":{l}" : "")}: {problem}. {fix}")
-{
-    public string FilePath { get; } = path;
-    public int? Line { get; } = line;
-}
+public sealed class FitSetupException(string path, int? line, string problem, string fix) : InputException(path, line, problem, fix);
 
 /// <summary>A fit setup as read, with the lineshape it asks for.</summary>
 public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);

@@ -41,84 +41,97 @@ public static class SpinSystemJson
 
     public static SpinSystemDocument Parse(string text, string path)
     {
-        JsonNode? root;
-        try { root = JsonNode.Parse(text, documentOptions: new JsonDocumentOptions { CommentHandling = JsonCommentHandling.Skip, AllowTrailingCommas = true }); }
-        catch (JsonException e)
-        {
-            throw new SpinSystemFileException(path, (int?)e.LineNumber + 1, $"not valid JSON: {e.Message}", "Fix the JSON syntax at that line");
-        }
+        if (string.IsNullOrWhiteSpace(text))
+            throw new SpinSystemFileException(path, null, "the file is empty", "Write {\"field_mhz\": 400, \"nuclei\": [...], \"couplings\": [...]}");
+        var lines = JsonLineMap.Scan(text, path);
+        // The scan has refused invalid JSON and duplicate keys, the two things that make the parser throw.
+        var root = JsonNode.Parse(text, documentOptions: new JsonDocumentOptions { CommentHandling = JsonCommentHandling.Skip, AllowTrailingCommas = true });
+        var read = new Reader(path, lines);
         if (root is not JsonObject obj)
-            throw new SpinSystemFileException(path, null, "the JSON is not an object", "Write {\"field_mhz\": 400, \"nuclei\": [...], \"couplings\": [...]}");
+            throw new SpinSystemFileException(path, lines.LineOf(""), "the JSON is not an object", "Write {\"field_mhz\": 400, \"nuclei\": [...], \"couplings\": [...]}");
 
-        Check(path, obj, "the top level", ["title", "field_mhz", "observe", "linewidth_hz", "nuclei", "couplings"]);
-        var field = Number(path, obj, "field_mhz", "the top level") ?? throw Missing(path, "field_mhz", "the top level", "\"field_mhz\": 400");
-        var title = obj["title"]?.GetValue<string>() ?? "";
-        var observed = obj["observe"] is { } ob ? IsotopeOf(path, ob.GetValue<string>()) : Isotope.H1;
-        WidthHz? width = Number(path, obj, "linewidth_hz", "the top level") is { } w ? new WidthHz(w) : null;
+        read.Keys(obj, "", ["title", "field_mhz", "observe", "linewidth_hz", "nuclei", "couplings"]);
+        var field = read.Number(obj, "", "field_mhz") ?? throw read.Missing("", "field_mhz", "\"field_mhz\": 400");
+        var title = read.Text(obj, "", "title") ?? "";
+        var observed = read.Text(obj, "", "observe") is { } ob ? read.IsotopeOf("observe", ob) : Isotope.H1;
+        WidthHz? width = read.Number(obj, "", "linewidth_hz") is { } w ? new WidthHz(w) : null;
 
         var nuclei = new List<Nucleus>();
         if (obj["nuclei"] is not JsonArray na || na.Count == 0)
-            throw Missing(path, "nuclei", "the top level", "\"nuclei\": [{\"id\": \"H1\", \"shift_ppm\": 7.1}]");
+            throw obj["nuclei"] is null
+                ? read.Missing("", "nuclei", "\"nuclei\": [{\"id\": \"H1\", \"shift_ppm\": 7.1}]")
+                : new SpinSystemFileException(path, lines.LineOf("nuclei"), "nuclei must be a list of one or more nuclei", "Write \"nuclei\": [{\"id\": \"H1\", \"shift_ppm\": 7.1}]");
         for (var i = 0; i < na.Count; i++)
         {
             var where = $"nuclei[{i}]";
-            if (na[i] is not JsonObject n) throw new SpinSystemFileException(path, null, $"{where} is not an object", "Write {\"id\": \"H1\", \"shift_ppm\": 7.1}");
-            Check(path, n, where, ["id", "shift_ppm", "count", "isotope", "linewidth_hz"]);
-            var id = n["id"]?.GetValue<string>() ?? throw Missing(path, "id", where, "\"id\": \"H1\"");
-            var shift = Number(path, n, "shift_ppm", where) ?? throw Missing(path, "shift_ppm", where, "\"shift_ppm\": 7.1");
-            var count = Number(path, n, "count", where) ?? 1;
-            if (count != Math.Floor(count)) throw new SpinSystemFileException(path, null, $"{where}.count must be a whole number", "Write \"count\": 3");
-            var iso = n["isotope"] is { } isoNode ? IsotopeOf(path, isoNode.GetValue<string>()) : Isotope.H1;
-            WidthHz? nw = Number(path, n, "linewidth_hz", where) is { } x ? new WidthHz(x) : null;
+            if (na[i] is not JsonObject n) throw new SpinSystemFileException(path, lines.LineOf(where), $"{where} is not an object", "Write {\"id\": \"H1\", \"shift_ppm\": 7.1}");
+            read.Keys(n, where, ["id", "shift_ppm", "count", "isotope", "linewidth_hz"]);
+            var id = read.Text(n, where, "id") ?? throw read.Missing(where, "id", "\"id\": \"H1\"");
+            var shift = read.Number(n, where, "shift_ppm") ?? throw read.Missing(where, "shift_ppm", "\"shift_ppm\": 7.1");
+            var count = read.Number(n, where, "count") ?? 1;
+            if (count != Math.Floor(count))
+                throw new SpinSystemFileException(path, lines.LineOf($"{where}.count"), $"{where}.count must be a whole number", "Write \"count\": 3");
+            var iso = read.Text(n, where, "isotope") is { } isoText ? read.IsotopeOf($"{where}.isotope", isoText) : Isotope.H1;
+            WidthHz? nw = read.Number(n, where, "linewidth_hz") is { } x ? new WidthHz(x) : null;
             nuclei.Add(new Nucleus(id, new ShiftPpm(shift), (int)Math.Clamp(count, int.MinValue, int.MaxValue), iso, nw));
         }
         var couplings = new List<Coupling>();
+        if (obj["couplings"] is { } cn && cn is not JsonArray)
+            throw new SpinSystemFileException(path, lines.LineOf("couplings"), "couplings must be a list", "Write \"couplings\": [{\"a\": \"H1\", \"b\": \"H2\", \"j_hz\": 8.5}]");
         if (obj["couplings"] is JsonArray ca)
             for (var i = 0; i < ca.Count; i++)
             {
                 var where = $"couplings[{i}]";
-                if (ca[i] is not JsonObject c) throw new SpinSystemFileException(path, null, $"{where} is not an object", "Write {\"a\": \"H1\", \"b\": \"H2\", \"j_hz\": 8.5}");
-                Check(path, c, where, ["a", "b", "j_hz"]);
-                var a = c["a"]?.GetValue<string>() ?? throw Missing(path, "a", where, "\"a\": \"H1\"");
-                var b = c["b"]?.GetValue<string>() ?? throw Missing(path, "b", where, "\"b\": \"H2\"");
-                var j = Number(path, c, "j_hz", where) ?? throw Missing(path, "j_hz", where, "\"j_hz\": 8.5");
+                if (ca[i] is not JsonObject c) throw new SpinSystemFileException(path, lines.LineOf(where), $"{where} is not an object", "Write {\"a\": \"H1\", \"b\": \"H2\", \"j_hz\": 8.5}");
+                read.Keys(c, where, ["a", "b", "j_hz"]);
+                var a = read.Text(c, where, "a") ?? throw read.Missing(where, "a", "\"a\": \"H1\"");
+                var b = read.Text(c, where, "b") ?? throw read.Missing(where, "b", "\"b\": \"H2\"");
+                var j = read.Number(c, where, "j_hz") ?? throw read.Missing(where, "j_hz", "\"j_hz\": 8.5");
                 couplings.Add(new Coupling(a, b, new CouplingHz(j)));
             }
 
-        var problems = SpinSystemRules.Check(new FieldMHz(field), nuclei, couplings);
-        if (problems.Count > 0)
-        {
-            var p = problems[0];
-            var where = p.Site switch { ProblemSite.Field => "field_mhz", ProblemSite.Nucleus => $"nuclei[{p.Index}]", _ => $"couplings[{p.Index}]" };
-            throw new SpinSystemFileException(path, null, $"{where}: {p.Message}", p.Fix);
-        }
-        if (width is { } dw && dw.Value <= 0)
-            throw new SpinSystemFileException(path, null, "linewidth_hz must be above 0", "Give the FWHM in Hz, for example 0.8");
-        var system = SpinSystem.Create(new FieldMHz(field), nuclei, couplings, title, observed);
-        return new SpinSystemDocument(path, system, width, SpinSystemRules.Warnings(system));
+        var sites = new SourceLines(lines.LineOf("field_mhz"),
+            Enumerable.Range(0, nuclei.Count).Select(i => lines.LineOf($"nuclei[{i}]")).ToArray(),
+            Enumerable.Range(0, couplings.Count).Select(i => lines.LineOf($"couplings[{i}]")).ToArray(),
+            lines.LineOf("linewidth_hz"));
+        return SpinSystemDocument.Build(path, new FieldMHz(field), nuclei, couplings, title, observed, width, sites);
     }
 
-    private static void Check(string path, JsonObject o, string where, string[] allowed)
+    /// <summary>Typed access to the values of one file, every refusal naming the path in the document and its line.</summary>
+    private sealed class Reader(string path, JsonLineMap lines)
     {
-        foreach (var (key, _) in o)
-            if (!allowed.Contains(key))
-                throw new SpinSystemFileException(path, null, $"unknown key \"{key}\" in {where}", $"Allowed keys: {string.Join(", ", allowed)}");
-    }
+        private static string At(string where, string key) => where.Length == 0 ? key : $"{where}.{key}";
 
-    private static double? Number(string path, JsonObject o, string key, string where)
-    {
-        if (o[key] is not { } node) return null;
-        if (node is JsonValue v && v.TryGetValue<double>(out var d))
+        private static string Shown(string where) => where.Length == 0 ? "the top level" : where;
+
+        public void Keys(JsonObject o, string where, string[] allowed)
         {
-            if (!double.IsFinite(d)) throw new SpinSystemFileException(path, null, $"{where}.{key} is not finite", "Give an ordinary number");
-            return d;
+            foreach (var (key, _) in o)
+                if (!allowed.Contains(key))
+                    throw new SpinSystemFileException(path, lines.LineOf(At(where, key)), $"unknown key \"{key}\" in {Shown(where)}",
+                        $"Did you mean \"{SpinSystemToml.KeyHint(key, allowed)}\"? Allowed keys: {string.Join(", ", allowed)}");
         }
-        throw new SpinSystemFileException(path, null, $"{where}.{key} must be a number", $"Write \"{key}\": 1.5 (no quotes)");
+
+        public double? Number(JsonObject o, string where, string key)
+        {
+            if (!o.TryGetPropertyValue(key, out var node)) return null;
+            if (node is JsonValue v && v.GetValueKind() == JsonValueKind.Number && v.TryGetValue<double>(out var d) && double.IsFinite(d)) return d;
+            throw new SpinSystemFileException(path, lines.LineOf(At(where, key)), $"{At(where, key)} must be a finite number",
+                $"Write \"{key}\": 1.5 (no quotes)");
+        }
+
+        public string? Text(JsonObject o, string where, string key)
+        {
+            if (!o.TryGetPropertyValue(key, out var node)) return null;
+            if (node is JsonValue v && v.GetValueKind() == JsonValueKind.String) return v.GetValue<string>();
+            throw new SpinSystemFileException(path, lines.LineOf(At(where, key)), $"{At(where, key)} must be a text in double quotes",
+                $"Write \"{key}\": \"...\"");
+        }
+
+        public Isotope IsotopeOf(string at, string text) => Isotope.TryParse(text, out var iso) ? iso
+            : throw new SpinSystemFileException(path, lines.LineOf(at), $"unknown isotope \"{text}\"", $"Use one of {string.Join(", ", Isotope.Known.Select(i => i.Symbol))}");
+
+        public SpinSystemFileException Missing(string where, string key, string example) =>
+            new(path, lines.LineOf(where), $"{key} is missing in {Shown(where)}", $"Add {example}");
     }
-
-    private static Isotope IsotopeOf(string path, string text) => Isotope.TryParse(text, out var iso) ? iso
-        : throw new SpinSystemFileException(path, null, $"unknown isotope \"{text}\"", $"Use one of {string.Join(", ", Isotope.Known.Select(i => i.Symbol))}");
-
-    private static SpinSystemFileException Missing(string path, string key, string where, string example) =>
-        new(path, null, $"{key} is missing in {where}", $"Add {example}");
 }

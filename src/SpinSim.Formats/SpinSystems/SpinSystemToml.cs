@@ -38,6 +38,7 @@ public static class SpinSystemToml
         var doc = ParseSyntax(text, path);
 
         var fieldLine = 0;
+        int? widthLine = null;
         double? fieldMHz = null;
         string title = "";
         WidthHz? defaultWidth = null;
@@ -53,7 +54,7 @@ public static class SpinSystemToml
                     var tesla = Number(path, kv);
                     fieldMHz = FieldMHz.FromTesla(tesla).Value; fieldLine = line;
                     break;
-                case "linewidth_hz": defaultWidth = Width(path, kv); break;
+                case "linewidth_hz": defaultWidth = Width(path, kv); widthLine = line; break;
                 case "observe": observed = IsotopeOf(path, kv); break;
                 default: throw UnknownKey(path, line, key, TopKeys, "at the top of the file");
             }
@@ -85,15 +86,8 @@ public static class SpinSystemToml
         if (nuclei.Count == 0)
             throw new SpinSystemFileException(path, null, "no nuclei are defined", "Add at least one [[nucleus]] table with id and shift_ppm");
 
-        var problems = SpinSystemRules.Check(new FieldMHz(fieldMHz.Value), nuclei, couplings);
-        if (problems.Count > 0)
-        {
-            var p = problems[0];
-            var line = p.Site switch { ProblemSite.Field => fieldLine, ProblemSite.Nucleus => nucleusLines[p.Index], _ => couplingLines[p.Index] };
-            throw new SpinSystemFileException(path, line, p.Message + (problems.Count > 1 ? $" (and {problems.Count - 1} more problem(s))" : ""), p.Fix);
-        }
-        var system = SpinSystem.Create(new FieldMHz(fieldMHz.Value), nuclei, couplings, title, observed);
-        return new SpinSystemDocument(path, system, defaultWidth, SpinSystemRules.Warnings(system),
+        return SpinSystemDocument.Build(path, new FieldMHz(fieldMHz.Value), nuclei, couplings, title, observed, defaultWidth,
+            new SourceLines(fieldLine, nucleusLines.Select(l => (int?)l).ToArray(), couplingLines.Select(l => (int?)l).ToArray(), widthLine),
             fitEntries.Count > 0 ? new FitSection(path, fitEntries) : null);
     }
 
@@ -140,13 +134,8 @@ public static class SpinSystemToml
                 case "count":
                     if (kv.Value is not IntegerValueSyntax integer)
                         throw new SpinSystemFileException(path, Line(kv), "count must be a whole number", "Write count = 3 for a methyl");
-                    if (integer.Value < 1)
-                        throw new SpinSystemFileException(path, Line(kv), $"count is {integer.Value}, must be at least 1",
-                            "Use count = 1 for a single nucleus, 2 or more for a set of magnetically equivalent nuclei");
-                    if (integer.Value > 64)
-                        throw new SpinSystemFileException(path, Line(kv), $"count is {integer.Value}; sets of more than 64 equivalent nuclei are not supported",
-                            "Check the value; a tert-butyl group has count = 9");
-                    count = (int)integer.Value;
+                    // The limits themselves are SpinSystemRules'; this only keeps the value an int.
+                    count = (int)Math.Clamp(integer.Value, int.MinValue, int.MaxValue);
                     break;
                 case "isotope": isotope = IsotopeOf(path, kv); break;
                 case "linewidth_hz": width = Width(path, kv); break;
@@ -243,9 +232,22 @@ public static class SpinSystemToml
 
     private static SpinSystemFileException UnknownKey(string path, int line, string key, string[] allowed, string where)
     {
-        var hint = allowed.OrderBy(a => Distance(a, key)).First();
+        var hint = KeyHint(key, allowed);
         return new SpinSystemFileException(path, line, $"unknown key \"{key}\" {where}",
             $"Did you mean \"{hint}\"? Allowed keys: {string.Join(", ", allowed)}");
+    }
+
+    /// <summary>
+    /// The allowed key the user most likely meant: one that begins with what was typed (units are in the key names, so
+    /// "shift" means "shift_ppm"), else one that contains it, else the nearest by edit distance.
+    /// </summary>
+    internal static string KeyHint(string key, IReadOnlyList<string> allowed)
+    {
+        var lower = key.ToLowerInvariant();
+        return allowed.FirstOrDefault(a => lower.Length > 0 && a.StartsWith(lower, StringComparison.Ordinal))
+            ?? allowed.FirstOrDefault(a => lower.Length > 1 && a.Contains(lower, StringComparison.Ordinal))
+            ?? allowed.FirstOrDefault(a => a.Length > 1 && lower.StartsWith(a, StringComparison.Ordinal))
+            ?? allowed.OrderBy(a => Distance(a, lower)).First();
     }
 
     private static int Distance(string a, string b)

@@ -58,7 +58,7 @@ public class CheckCliTests
         Assert.True(code == 0, err);
         Assert.Contains("plan             exact, the whole system as one cluster (--exact)", o);
         Assert.Contains("clusters         1", o);
-        Assert.Contains("warning: simulate will refuse this plan", o);
+        Assert.Contains("warning: simulate will refuse this plan", err);
     }
 
     [Fact]

@@ -68,7 +68,7 @@ public class CliTests
         File.WriteAllText(path, "field_mhz = 400\n[[nucleus]]\nid = \"A\"\n");
         var (code, _, err) = Run("simulate", path);
         Assert.Equal(1, code);
-        Assert.Contains(path + ":2:", err);
+        Assert.Contains(path + ", line 2:", err);
         Assert.Contains("shift_ppm", err);
         File.Delete(path);
     }

@@ -66,7 +66,7 @@ public class FitCliTests
         File.AppendAllText(start, "tie = [[\"shift:HA\", \"shift:HQ\"]]\n");
         (code, _, err) = CliTests.Run("fit", start, "--data", data, "-q");
         Assert.Equal(1, code);
-        Assert.Contains(start + ":", err);
+        Assert.Contains(start + ", line ", err);
         Assert.Contains("\"shift:HQ\" names no parameter", err);
         File.Delete(data);
         File.Delete(start);

@@ -50,9 +50,9 @@ public sealed class FigureRendererTests
     }
 
     [Theory]
-    [InlineData(100.0, null, null, null, "WidthMm and HeightMm")]
+    [InlineData(100.0, null, null, null, "height in mm")]
     [InlineData(100.0, 50.0, 800, 600, "not both")]
-    [InlineData(null, null, 800, null, "WidthPx and HeightPx")]
+    [InlineData(null, null, 800, null, "height in pixels")]
     public void Half_given_or_mixed_sizes_are_refused(double? wmm, double? hmm, int? wpx, int? hpx, string message)
     {
         var options = new FigureOptions { WidthMm = wmm, HeightMm = hmm, WidthPx = wpx, HeightPx = hpx };

@@ -43,7 +43,14 @@ public class SpinSystemTomlTests
     [InlineData("between = [\"A\", \"Me\"]", "between = [\"A\", \"Q\"]", 11, "unknown nucleus id \"Q\"")]
     [InlineData("id = \"Me\"", "id = \"A\"", 7, "duplicate nucleus id \"A\"")]
     [InlineData("between = [\"A\", \"Me\"]", "between = [\"A\", \"A\"]", 11, "with itself")]
-    [InlineData("count = 3", "count = 0", 10, "must be at least 1")]
+    // Limits of the model are refused at the line of the [[nucleus]] table they concern.
+    [InlineData("count = 3", "count = 0", 7, "must be at least 1")]
+    [InlineData("count = 3", "count = 65", 7, "more than 64 equivalent nuclei")]
+    [InlineData("shift_ppm = 7.1", "shift_ppm = 2e4", 4, "beyond the +-1E+04 ppm")]
+    [InlineData("field_mhz = 400", "field_mhz = 300e6", 3, "field_mhz = 300 if")]
+    [InlineData("field_mhz = 400", "field_mhz = 9e-324", 3, "outside the 0.001 to 1E+07 MHz")]
+    [InlineData("j_hz = -7.5", "j_hz = 2e5", 11, "beyond the +-1E+05 Hz")]
+    [InlineData("shift_ppm = 7.1", "shift = 7.1", 6, "Did you mean \"shift_ppm\"")]
     [InlineData("shift_ppm = 7.1", "shift_ppm = nan", 6, "not a finite number")]
     [InlineData("j_hz = -7.5", "j_hz = inf", 13, "not a finite number")]
     [InlineData("count = 3", "isotope = \"2H\"", 10, "unknown isotope \"2H\"")]
@@ -57,7 +64,7 @@ public class SpinSystemTomlTests
         var e = Assert.Throws<SpinSystemFileException>(() => SpinSystemToml.Parse(text, "bad.toml"));
         Assert.Equal(line, e.Line);
         Assert.Contains(expected, e.Message);
-        Assert.StartsWith($"bad.toml:{line}:", e.Message);
+        Assert.StartsWith($"bad.toml, line {line}:", e.Message);
         Assert.False(string.IsNullOrWhiteSpace(e.Fix));
     }
 

@@ -1,3 +1,4 @@
+using SpinSim.Core.Errors;
 using SpinSim.Core.Model;
 
 namespace SpinSim.Core.Fitting.Spectral;
@@ -52,9 +53,9 @@ public sealed class ParameterLayout
         foreach (var tie in ties)
         {
             var members = tie.Select(n => byName.TryGetValue(n, out var i) ? i
-                : throw new ArgumentException($"tie names unknown parameter \"{n}\"")).ToArray();
+                : throw new InputException(null, null, $"tie names unknown parameter \"{n}\"", "Tie parameters of this system (shift:ID, j:A-B, linewidth)")).ToArray();
             var kinds = members.Select(m => parameters[m].Kind).Distinct().Count();
-            if (kinds > 1) throw new ArgumentException($"tie [{string.Join(", ", tie)}] mixes parameters of different kinds");
+            if (kinds > 1) throw new InputException(null, null, $"tie [{string.Join(", ", tie)}] mixes parameters of different kinds", "Tie shifts with shifts and couplings with couplings");
             foreach (var m in members) Relabel(group, group[m], group[members[0]]);
         }
         _freeOf = Enumerable.Repeat(-1, parameters.Count).ToArray();

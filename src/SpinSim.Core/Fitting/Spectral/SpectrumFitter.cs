@@ -1,3 +1,4 @@
+using SpinSim.Core.Errors;
 using SpinSim.Core.Engine;
 using SpinSim.Core.Model;
 using SpinSim.Core.Spectrum;
@@ -51,10 +52,10 @@ public static class SpectrumFitter
         var engine = (options.Engine ?? EngineOptions.Default) with { RelativeIntensityFloor = floor, PoolWeakLines = false };
         var prepared = problem.Data.Select(PreparedData.From).ToArray();
         var layout = new ParameterLayout(StartScales(problem, prepared, engine), problem.Ties);
-        if (layout.FreeCount == 0) throw new ArgumentException("nothing to fit: every parameter is fixed");
+        if (layout.FreeCount == 0) throw new InputException(null, null, "nothing to fit: every parameter is fixed", "Vary at least one parameter (vary = [\"shift:*\"] in the [fit] table)");
         var points = prepared.Sum(p => p.Count);
         if (points <= layout.FreeCount)
-            throw new ArgumentException($"the fitted regions hold {points} points, not more than the {layout.FreeCount} free parameters; widen the regions");
+            throw new InputException(null, null, $"the fitted regions hold {points} points, not more than the {layout.FreeCount} free parameters", "Widen the regions (regions_ppm in the [fit] table)");
 
         var stages = Stages(problem, options);
         var starts = StartPoints(problem, layout, options);
