@@ -59,14 +59,16 @@ public static class CheckCommand
         o.WriteLine($"cost             {estimate.Describe()}");
         o.WriteLine($"backend          {DenseBackends.Default.Name}");
         var warnings = new List<string>();
-        var seconds = DenseBackends.NativeAvailable ? estimate.NativeSeconds : estimate.ManagedSeconds;
+        var seconds = estimate.SecondsWith(DenseBackends.Default);
         if (estimate.WorkingBytes > options.MemoryBudgetBytes)
             warnings.Add($"simulate will refuse this plan: it needs about {estimate.WorkingBytes / (1L << 30):0.##} GiB, more than the budget of {options.MemoryBudgetBytes / (double)(1L << 30):0.##} GiB");
+        else if (seconds > options.TimeBudgetSeconds)
+            warnings.Add($"simulate will refuse this plan: it would take about {seconds:G3} s, more than the budget of {options.TimeBudgetSeconds:0} s");
         else if (seconds > 10) warnings.Add($"this system will be slow to simulate (about {seconds:0} s); merge equivalent nuclei into sets where they are equivalent");
         foreach (var w in warnings) io.Warn(w);
     }
 
-    private static string Count(int n, string one, string many) => $"{n} {(n == 1 ? one : many)}";
+    private static string Count(long n, string one, string many) => $"{n} {(n == 1 ? one : many)}";
 
     /// <summary>The clusters the engine will diagonalise, the largest block, and the error the splitting may cause.</summary>
     private static void PrintPlan(TextWriter o, SpinSystem s, ClusterPlan plan, EngineOptions options)

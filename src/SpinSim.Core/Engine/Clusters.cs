@@ -164,7 +164,17 @@ public static class ClusterPartition
         return configurations.Values.Select(v => (v.Shift, v.Weight)).ToList();
     }
 
-    /// <summary>How many times the cluster is diagonalised: its distinct spectator configurations.</summary>
-    public static int SpectatorConfigurationCount(SpinSystem system, Cluster cluster) => SpectatorConfigurations(system, cluster).Count;
+    /// <summary>Above this many spectator states-by-M the configurations are counted, not enumerated.</summary>
+    internal const double EnumeratedConfigurations = 100_000;
+
+    /// <summary>
+    /// How many times the cluster is diagonalised: its distinct spectator configurations. When the spectators have more
+    /// than <see cref="EnumeratedConfigurations"/> combinations of M, their number (an upper bound) without enumerating them.
+    /// </summary>
+    public static long SpectatorConfigurationCount(SpinSystem system, Cluster cluster)
+    {
+        var raw = cluster.Spectators.Aggregate(1.0, (acc, e) => acc * (system.Nuclei[e].Count + 1));
+        return raw > EnumeratedConfigurations ? (long)Math.Min(raw, long.MaxValue) : SpectatorConfigurations(system, cluster).Count;
+    }
 
 }

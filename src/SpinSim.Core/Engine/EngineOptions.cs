@@ -23,6 +23,10 @@ namespace SpinSim.Core.Engine;
 /// </param>
 /// <param name="MergeToleranceHz">Lines closer than this are merged into one (degenerate transitions).</param>
 /// <param name="MemoryBudgetBytes">Systems whose estimated working memory exceeds this are refused.</param>
+/// <param name="TimeBudgetSeconds">
+/// Systems whose estimated time (<see cref="ResourceEstimate"/>, with the backend that will run) exceeds this are refused
+/// before any work, so that no input makes the engine run for hours; the default is one hour.
+/// </param>
 /// <param name="Splitting">Exact (one cluster), Split (weak-coupling clusters) or Auto (exact while cheap).</param>
 /// <param name="WeakCouplingRatio">Couplings with |J| / |delta nu| above this keep their nuclei in one cluster.</param>
 /// <param name="AutoExactLargestBlock">In Auto mode, systems whose largest exact block has at most this many states are simulated exactly.</param>
@@ -35,7 +39,8 @@ public sealed record EngineOptions(
     double WeakCouplingRatio = 0.05,
     int AutoExactLargestBlock = 256,
     double PoolWidthHz = 0.01,
-    bool PoolWeakLines = true)
+    bool PoolWeakLines = true,
+    double TimeBudgetSeconds = 3600)
 {
     public static EngineOptions Default { get; } = new();
 

@@ -16,16 +16,19 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
 
     public static ResourceEstimate For(SpinSystem system) => For(system, Enumerable.Range(0, system.Nuclei.Count).ToArray());
 
+    /// <summary>Above this many combinations of total spins the time is bounded (combinations x the largest one) rather than summed.</summary>
+    private const int SummedCombinations = 4096;
+
     /// <summary>The cost of diagonalising the entries <paramref name="members"/> of <paramref name="system"/> together.</summary>
     public static ResourceEstimate For(SpinSystem system, int[] members)
     {
-        // Per combination the blocks are the multinomial slices of the product space; the largest combination
-        // is the one where every set takes its largest total spin, and it dominates the cost.
+        // Per combination the blocks are the multinomial slices of the product space; the largest combination is the one
+        // where every set takes its largest total spin. Memory is set by that one, time by all of them: each combination
+        // of total spins is a subspectrum of its own.
         var twiceF = members.Select(e => system.Nuclei[e].Count).ToArray();
         var isotopes = members.Select(e => system.Nuclei[e].Isotope).ToArray();
         var blockSizes = BlockSizes(twiceF, isotopes);
         var largest = blockSizes.Count == 0 ? 0 : blockSizes.Max();
-        double cubes = blockSizes.Sum(n => (double)n * n * n);
         double squares = blockSizes.Sum(n => (double)n * n);
         // Eigenvectors of all blocks are kept. Each solve running at the same time (one per core) holds about
         // 2 n^2 of dsyevd workspace, and each block pair two n x n work arrays: 4 n^2 per core at the largest block.
@@ -33,9 +36,32 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
         var concurrent = Math.Min(Environment.ProcessorCount, blockSizes.Count);
         var bytes = 8 * (squares + 4.0 * concurrent * largest * largest);
         var states = twiceF.Aggregate(1.0, (acc, f) => acc * (f + 1));
-        // The smaller total-spin combinations add roughly a geometric tail; a factor 1.5 covers it.
+        var cubes = CubesOverCombinations(twiceF, isotopes);
         return new ResourceEstimate(largest, (long)Math.Min(states, long.MaxValue), bytes,
-            1.5 * 2 * cubes * NativeSecondsPerCube, 1.5 * 2 * cubes * ManagedSecondsPerCube);
+            2 * cubes * NativeSecondsPerCube, 2 * cubes * ManagedSecondsPerCube);
+    }
+
+    /// <summary>
+    /// Sum of n^3 over the blocks of every combination of total spins (a set of k equivalent nuclei takes 2F = k, k - 2,
+    /// ...), exact up to <see cref="SummedCombinations"/> combinations and bounded above by combinations x the largest
+    /// beyond, so that a system with very many combinations is refused without being enumerated.
+    /// </summary>
+    private static double CubesOverCombinations(int[] counts, Isotope[] isotopes)
+    {
+        var choices = counts.Select(c => c / 2 + 1).ToArray();
+        var combinations = choices.Aggregate(1.0, (acc, c) => acc * c);
+        static double Cubes(List<int> sizes) => sizes.Sum(n => (double)n * n * n);
+        if (combinations > SummedCombinations) return combinations * Cubes(BlockSizes(counts, isotopes));
+        var choice = new int[counts.Length];
+        double total = 0;
+        while (true)
+        {
+            var twiceF = counts.Select((c, k) => c - 2 * choice[k]).ToArray();
+            total += Cubes(BlockSizes(twiceF, isotopes));
+            var i = counts.Length - 1;
+            while (i >= 0 && ++choice[i] == choices[i]) choice[i--] = 0;
+            if (i < 0) return total;
+        }
     }
 
     /// <summary>
@@ -46,15 +72,18 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
     public static ResourceEstimate For(SpinSystem system, ClusterPlan plan)
     {
         if (plan.IsExact) return For(system);
-        var parts = plan.Clusters.Select(c => (Estimate: For(system, c.Entries), Configurations: ClusterPartition.SpectatorConfigurations(system, c).Count)).ToList();
+        var parts = plan.Clusters.Select(c => (Estimate: For(system, c.Entries), Configurations: (double)ClusterPartition.SpectatorConfigurationCount(system, c))).ToList();
         if (parts.Count == 0) return new ResourceEstimate(0, 0, 0, 0, 0);
         return new ResourceEstimate(
             parts.Max(p => p.Estimate.LargestBlock),
-            parts.Sum(p => p.Estimate.StateCount * p.Configurations),
+            (long)Math.Min(parts.Sum(p => p.Estimate.StateCount * p.Configurations), long.MaxValue),
             parts.Max(p => p.Estimate.WorkingBytes),
             parts.Sum(p => p.Estimate.NativeSeconds * p.Configurations),
             parts.Sum(p => p.Estimate.ManagedSeconds * p.Configurations));
     }
+
+    /// <summary>The estimated time with the backend that will run: native OpenBLAS or the managed solver.</summary>
+    public double SecondsWith(LinearAlgebra.IDenseBackend backend) => backend is LinearAlgebra.OpenBlasBackend ? NativeSeconds : ManagedSeconds;
 
     /// <summary>Sizes of the blocks of fixed M per isotope for particles of spin twiceF/2.</summary>
     internal static List<int> BlockSizes(int[] twiceF, Isotope[] isotopes)
@@ -86,12 +115,23 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
     private static string Seconds(double s) => s < 0.01 ? "< 0.01 s" : s < 120 ? $"{s:0.##} s" : $"{s / 60:0.#} min";
 }
 
-/// <summary>The system is too large for the memory budget; the message states the size and what to do.</summary>
-public sealed class SystemTooLargeException(ResourceEstimate estimate, long budgetBytes) : InputException(null, null,
-    $"this spin system needs a block of {estimate.LargestBlock} states and about {estimate.WorkingBytes / (1L << 30):0.##} GiB of working memory, " +
-    $"more than the budget of {budgetBytes / (double)(1L << 30):0.##} GiB",
-    "Merge magnetically equivalent nuclei into one entry with a count " +
-    "(a methyl is one entry with count = 3), or let SpinSim split weakly coupled parts (do not use --exact; lower the splitting threshold)")
+/// <summary>
+/// The system is too large for the engine's memory or time budget: refused before any work, the message states the
+/// size, the budget and what to do.
+/// </summary>
+public sealed class SystemTooLargeException(string problem, ResourceEstimate estimate) : InputException(null, null, problem,
+    "Merge magnetically equivalent nuclei into one entry with a count (a methyl is one entry with count = 3), " +
+    "or let SpinSim split weakly coupled parts (do not use --exact; lower the splitting threshold)")
 {
     public ResourceEstimate Estimate { get; } = estimate;
+
+    public static SystemTooLargeException ForMemory(ResourceEstimate estimate, long budgetBytes) => new(
+        $"this spin system needs a block of {estimate.LargestBlock} states and about {estimate.WorkingBytes / (1L << 30):0.##} GiB of working memory, " +
+        $"more than the budget of {budgetBytes / (double)(1L << 30):0.##} GiB", estimate);
+
+    public static SystemTooLargeException ForTime(ResourceEstimate estimate, double seconds, double budgetSeconds) => new(
+        $"this spin system would take about {Describe(seconds)} to simulate (largest block {estimate.LargestBlock} states), " +
+        $"more than the budget of {Describe(budgetSeconds)}", estimate);
+
+    private static string Describe(double s) => s < 120 ? $"{s:0.##} s" : s < 7200 ? $"{s / 60:0.#} min" : s < 1e6 ? $"{s / 3600:0.#} h" : $"{s:G3} s";
 }

@@ -51,14 +51,18 @@ public static class SpectrumEngine
     {
         if (!(options.PoolWidthHz > 0) || !double.IsFinite(options.PoolWidthHz))
             throw new ArgumentOutOfRangeException(nameof(options), options.PoolWidthHz, "the pooling width must be positive and finite");
+        var backend = options.ResolvedBackend;
+        // Refused before any work: memory per cluster, time for the whole plan.
         foreach (var cluster in plan.Clusters)
         {
             var estimate = ResourceEstimate.For(system, cluster.Entries);
             if (estimate.WorkingBytes > options.MemoryBudgetBytes)
-                throw new SystemTooLargeException(estimate, options.MemoryBudgetBytes);
+                throw SystemTooLargeException.ForMemory(estimate, options.MemoryBudgetBytes);
         }
+        var whole = ResourceEstimate.For(system, plan);
+        if (whole.SecondsWith(backend) > options.TimeBudgetSeconds)
+            throw SystemTooLargeException.ForTime(whole, whole.SecondsWith(backend), options.TimeBudgetSeconds);
 
-        var backend = options.ResolvedBackend;
         var observeMHz = system.Observed.ObserveMHz(system.Field);
         var expectedTotal = ExpectedTotalIntensity(system);
         var floor = options.RelativeIntensityFloor * expectedTotal;

@@ -104,6 +104,8 @@ internal sealed class LinePools
     /// <summary>Pools for up to <paramref name="transitions"/> lines between <paramref name="lowHz"/> and <paramref name="highHz"/>.</summary>
     public static LinePools ForRange(int entryCount, double widthHz, double lowHz, double highHz, long transitions)
     {
+        // Bin numbers are exact only while |frequency| / width stays well inside a long and a double's 53 bits.
+        if (!(Math.Max(Math.Abs(lowHz), Math.Abs(highHz)) / widthHz < 1e15)) return new LinePools(entryCount, widthHz);
         var first = BinOf(lowHz, widthHz);
         var bins = BinOf(highHz, widthHz) - first + 1;
         return bins <= transitions && bins * (entryCount + 2) <= DenseLimitDoubles

@@ -1,4 +1,5 @@
 using SpinSim.Core.Engine;
+using SpinSim.Core.Errors;
 using SpinSim.Core.Model;
 using SpinSim.Core.Traces;
 using SpinSim.Core.Units;
@@ -54,6 +55,9 @@ public static class SpectrumSimulator
         var render = RenderLines(system, lines, settings.DefaultWidth);
         var observeMHz = lines.ObserveMHz;
         // The default window covers the lines one could see: weak combination lines far out would only stretch it.
+        if (render.Length == 0 && (settings.FromPpm is null || settings.ToPpm is null))
+            throw new InputException(null, null, $"the system has no {system.Observed} lines, so there is no window to draw a trace over",
+                $"Add {system.Observed} nuclei, or give the window (from and to in ppm)");
         var tallest = render.Length == 0 ? 0 : render.Max(l => l.Area / l.FwhmHz);
         var visible = render.Where(l => l.Area / l.FwhmHz >= VisibleFraction * tallest).ToArray();
         var window = SpectrumGrid.WindowFor(visible, observeMHz, settings.ReferenceOffsetPpm);

@@ -92,9 +92,12 @@ public static class SpinSystemToml
     }
 
     /// <summary>Reads a fit file: a TOML file holding only a [fit] table (and [fit.bounds]), the same keys as in a system file.</summary>
-    public static FitSection ReadFitFile(string path)
+    public static FitSection ReadFitFile(string path) => ParseFitFile(SpinSystemFiles.ReadText(path, "the fit file"), path);
+
+    /// <summary>The [fit] section of a fit file's text; <paramref name="path"/> names it in messages.</summary>
+    public static FitSection ParseFitFile(string text, string path)
     {
-        var doc = ParseSyntax(SpinSystemFiles.ReadText(path, "the fit file"), path);
+        var doc = ParseSyntax(text, path);
         if (doc.KeyValues.ChildrenCount > 0)
             throw new SpinSystemFileException(path, Line(doc.KeyValues.First()), "a fit file holds only a [fit] table", "Put the settings under a [fit] line");
         var entries = new List<FitEntry>();
