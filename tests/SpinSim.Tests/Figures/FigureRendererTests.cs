@@ -104,7 +104,9 @@ public sealed class FigureRendererTests
         var text = string.Concat(doc.Descendants(ns + "text").Select(t => t.Value));
         Assert.Contains("ppm", text);
         Assert.Contains("H1", text);
-        Assert.All(doc.Descendants(ns + "text"), t => Assert.Contains("sans-serif", (string?)t.Attribute("font-family") ?? "sans-serif"));
+        // Every text names the bundled font, with the generic family as the fallback where DejaVu is absent.
+        Assert.NotEmpty(doc.Descendants(ns + "text"));
+        Assert.All(doc.Descendants(ns + "text"), t => Assert.Equal("DejaVu Sans, sans-serif", (string?)t.Attribute("font-family")));
     }
 
     [Fact]

@@ -66,16 +66,12 @@ public class NistStrdTests(ITestOutputHelper output)
 
     [ReferenceTheory]
     [MemberData(nameof(Runs))]
-    public void AnalyticJacobianReachesTheCertifiedValuesOrReportsNoConvergence(string name, int start)
+    public void AnalyticJacobianConvergesToTheCertifiedValues(string name, int start)
     {
         var outcome = Fit(name, start);
         output.WriteLine(outcome.ToString());
-        if (!outcome.Result.Converged)
-        {
-            // Not converged is an allowed outcome, but it must say why.
-            Assert.False(string.IsNullOrWhiteSpace(outcome.Result.Message));
-            return;
-        }
+        // Every one of the 54 runs converges with the analytic Jacobian (measured 2026-12-02); one that stops short is a regression.
+        Assert.True(outcome.Result.Converged, $"{name} start {start} did not converge: {outcome.Result.Message}");
         // Every certified set has finite certified standard deviations (NIST StRD nonlinear regression, ITL), so a
         // converged fit that leaves a direction undetermined is a wrong answer.
         Assert.Equal(outcome.File.ParameterCount, outcome.Result.Rank);
@@ -93,7 +89,8 @@ public class NistStrdTests(ITestOutputHelper output)
     {
         var outcome = Fit(name, start, analytic: false);
         output.WriteLine(outcome.ToString());
-        if (!outcome.Result.Converged) return;
+        // Every run converges with differences too (measured 2026-12-02); where a column vanishes, the null space must say so.
+        Assert.True(outcome.Result.Converged, $"{name} start {start} did not converge: {outcome.Result.Message}");
         if (outcome.Result.NullSpace.Count > 0)
         {
             Assert.All(Enumerable.Range(0, outcome.File.ParameterCount).Where(j => outcome.Result.Undetermined[j]),

@@ -1,4 +1,3 @@
-using System.Diagnostics;
 using System.Text;
 using System.Text.RegularExpressions;
 using SpinSim.Formats;
@@ -9,13 +8,12 @@ namespace SpinSim.Tests.Formats.Jcamp;
 
 /// <summary>
 /// Mutated copies of valid files (seeded, so a failure can be replayed): each either reads or throws
-/// SpectrumFileException with a message; nothing else escapes, nothing hangs, and a trace that reads
-/// has the point count its NPOINTS states (or one off, with the warning that says so).
+/// SpectrumFileException with a message; nothing else escapes, and a trace that reads has the point count its
+/// NPOINTS states (or one off, with the warning that says so). Speed is measured by JcampReadBenchmarks, not here.
 /// </summary>
 public class JcampReaderFuzzTests
 {
     private const int CasesPerFile = 1500;
-    private static readonly TimeSpan PerCaseLimit = TimeSpan.FromSeconds(5);
 
     [Fact]
     public void Mutated_writer_output_reads_or_fails_cleanly()
@@ -34,35 +32,31 @@ public class JcampReaderFuzzTests
     private static void Fuzz(string original, int seed)
     {
         var random = new Random(seed);
-        var clock = Stopwatch.StartNew();
         int read = 0, refused = 0;
         for (var n = 0; n < CasesPerFile; n++)
         {
             var mutated = Mutate(original, random);
             var name = $"fuzz-{seed}-{n}.jdx";
-            var run = Task.Run(() => JcampReader.Parse(mutated, name));
             try
             {
-                Assert.True(run.Wait(PerCaseLimit), $"case {n} (seed {seed}) did not finish within {PerCaseLimit.TotalSeconds} s");
-                var trace = run.Result;
+                var trace = JcampReader.Parse(mutated, name);
                 read++;
                 AssertNotSilentlyShortened(mutated, trace, n, seed);
             }
-            catch (AggregateException ae) when (ae.InnerException is SpectrumFileException e)
+            catch (SpectrumFileException e)
             {
                 refused++;
                 Assert.Equal(name, e.FilePath);
                 Assert.False(string.IsNullOrWhiteSpace(e.Problem), $"case {n}: empty message");
                 Assert.True(e.Line is null or > 0, $"case {n}: line {e.Line}");
             }
-            catch (AggregateException ae)
+            catch (Exception e) when (e is not Xunit.Sdk.XunitException)
             {
-                Assert.Fail($"case {n} (seed {seed}) threw {ae.InnerException?.GetType().Name}: {ae.InnerException}");
+                Assert.Fail($"case {n} (seed {seed}) threw {e.GetType().Name}: {e}");
             }
         }
         Assert.Equal(CasesPerFile, read + refused);
         Assert.True(read > 0 && refused > 0, $"read {read}, refused {refused}: the mutations should produce both");
-        Assert.True(clock.Elapsed < TimeSpan.FromSeconds(20), $"{CasesPerFile} cases took {clock.Elapsed}");
     }
 
     private static void AssertNotSilentlyShortened(string text, SpinSim.Core.Traces.SpectrumTrace trace, int n, int seed)
