@@ -47,7 +47,7 @@ public static class SpinSimCli
         catch (OperationCanceledException)
         {
             stderr.WriteLine("stopped by the user");
-            return ExitCodes.InputError;
+            return ExitCodes.Interrupted;
         }
     }
 }

@@ -94,22 +94,26 @@ public static class FitCommand
             }
 
             var section = setupPath is not null ? SpinSystemToml.ReadFitFile(setupPath) : document.Fit;
-            var settings = FitSetupReader.Read(section, system, traces.Count);
+            var settings = FitSetupReader.Read(section, system, traces.Count, document.Symmetries);
             var setup = settings.Setup;
             if (parse.GetValue(starts) is { } count) setup = setup with { Starts = count };
             var lineshape = parse.GetValue(shape) is { } named ? TraceChoice.ShapeFrom(named, 0.5) : settings.Shape ?? Lineshape.Lorentzian;
 
-            var datasets = new List<FitDataset>();
+            // The data's field wins: each trace is simulated at its own observe frequency.
+            var startMHz = system.Observed.ObserveMHz(system.Field);
+            for (var d = 0; d < traces.Count; d++)
+                if (Math.Abs(traces[d].ObserveMHz!.Value - startMHz) > 1e-4 * startMHz)
+                    io.Error.WriteLine($"note: {paths[d]} was measured at {traces[d].ObserveMHz:0.###} MHz and {Path.GetFileName(systemPath)} says " +
+                                       $"{startMHz:0.###} MHz: the fit uses the data's field");
+            var problem = setup.Problem(system, traces, width, lineshape);
             for (var d = 0; d < traces.Count; d++)
             {
-                var regions = setup.Regions ?? FitSetup.DefaultRegions(system, traces[d].ObserveMHz!.Value, width);
+                var regions = problem.Data[d].Regions;
                 var covered = traces[d].ShiftPpm.Count(x => regions.Any(r => r.Contains(x)) && !setup.Exclude.Any(r => r.Contains(x)));
                 if (covered < 10)
                     throw new UserInputException(paths[d], $"only {covered} points of the trace lie in the fitted regions ({string.Join("; ", regions)})",
                         "Check the file's ppm axis or give regions_ppm in the [fit] table");
-                datasets.Add(new FitDataset(traces[d], regions, setup.Exclude));
             }
-            var problem = new SpectrumFitProblem(system, datasets, setup.BuildParameters(system, traces.Count, width), setup.Ties, lineshape);
 
             var progress = io.Verbosity == Verbosity.Quiet ? null : new ThrottledProgress(io.Error);
             var result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed),
@@ -129,6 +133,7 @@ public static class FitCommand
                 }
             }
 
+            result = result with { Setup = result.Setup! with { CommandLine = CommandLine(parse), Version = Versions.Current } };
             PrintReport(io.Out, result, systemPath, paths);
             foreach (var w in result.Warnings) io.Warn(w);
 
@@ -144,7 +149,7 @@ public static class FitCommand
                     $"fitted to {string.Join(", ", paths.Select(Path.GetFileName))}; start values from {Path.GetFileName(systemPath)}",
                     $"converged: {result.Converged}; rms {result.Rms:G4} of the tallest point; see the fit report for standard errors",
                 };
-                outputs.Add(outSystem, w => w.Write(SpinSystemToml.Write(result.FittedSystem, result.FittedWidth ?? document.DefaultWidth, header)));
+                outputs.Add(outSystem, w => w.Write(SpinSystemToml.Write(result.FittedSystem, result.FittedWidth ?? document.DefaultWidth, header, document.Symmetries)));
             }
             if (figurePath is not null)
                 FigureChoice.Write(outputs, figurePath, FitFigure.Create(FigureData(result, systemPath), figureOptions), figureOptions);
@@ -153,12 +158,13 @@ public static class FitCommand
                 var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(FitFigure.Create(FigureData(result, systemPath), figureOptions), FigureFormat.Svg, figureOptions));
                 var page = HtmlFitReport.Render(new FitReportData(
                     $"SpinSim fit of {Path.GetFileName(systemPath)}", svg, Rows(result), result.Warnings, hashes, Versions.Current, created,
-                    Statistics(result), new ParameterCorrelation(result.FreeNames, result.Correlation)) { ErrorHeading = ErrorHeading(result) });
+                    Statistics(result), new ParameterCorrelation(result.FreeNames, result.Correlation)) { ErrorHeading = ErrorHeading(result), Setup = result.Setup });
                 outputs.Add(htmlPath, w => w.Write(page));
             }
             foreach (var written in outputs.Commit()) io.Status($"written: {written}");
-            // A fit stopped by the user keeps its best point and writes it, but says by its exit code that it did not finish.
-            return result.Stopped ? ExitCodes.InputError : ExitCodes.Success;
+            // A fit stopped by the user keeps its best point and writes it, but says by its exit code that it did not finish;
+            // one that ran to its end without converging says so too (its own code, distinct from bad input).
+            return result.Stopped ? ExitCodes.Interrupted : result.Converged ? ExitCodes.Success : ExitCodes.FitNotConverged;
         });
         return command;
     }
@@ -188,11 +194,20 @@ public static class FitCommand
         return text;
     }
 
+    /// <summary>The command as typed (each argument quoted where it needs it), for the report.</summary>
+    private static string CommandLine(ParseResult parse) =>
+        "spinsim " + string.Join(" ", parse.Tokens.Select(t => t.Value.Length == 0 || t.Value.Any(c => char.IsWhiteSpace(c) || c is '"' or '\'' or '$')
+            ? "'" + t.Value.Replace("'", "'\\''") + "'" : t.Value));
+
     private static IReadOnlyList<(string Label, string Value)> Statistics(SpectrumFitResult r) =>
     [
-        ("converged", r.Converged ? "yes" : "no"),
+        ("converged", r.Overlay ? "nothing varied (overlay)" : r.Converged ? "yes" : "no"),
         ("stopped because", r.StopReason),
         ("RMS residual (fraction of tallest point)", r.Rms.ToString("G4", CultureInfo.InvariantCulture)),
+        .. r.RmsPerTrace.Count > 1
+            ? r.RmsPerTrace.Select((v, d) => ($"RMS residual, trace {d + 1}", v.ToString("G4", CultureInfo.InvariantCulture)))
+            : [],
+        ("RMS residual at the start", r.StartRms.ToString("G4", CultureInfo.InvariantCulture)),
         ("R-factor", r.RFactor.ToString("G4", CultureInfo.InvariantCulture)),
         ("points", r.Points.ToString(CultureInfo.InvariantCulture)),
         ("iterations (final run)", r.Iterations.ToString(CultureInfo.InvariantCulture)),
@@ -211,10 +226,24 @@ public static class FitCommand
     private static void PrintReport(TextWriter o, SpectrumFitResult r, string systemPath, IReadOnlyList<string> data)
     {
         o.WriteLine($"fit of {systemPath} to {string.Join(", ", data)}");
-        o.WriteLine($"{(r.Converged ? "converged" : "NOT converged")}: {r.StopReason}");
-        o.WriteLine($"rms residual {r.Rms:G4} (fraction of the tallest point), R-factor {r.RFactor:G4}, {r.Points} points, " +
-                    $"{r.Iterations} iterations in the final run, {r.StartsAtBest} of {r.Starts} starts reached the best optimum" +
-                    (r.StartsJoined > 0 ? $" ({r.StartsJoined} joined another start's path on the way)" : ""));
+        if (r.Overlay)
+        {
+            o.WriteLine("nothing varied: the simulation at the given values compared with the data");
+            o.WriteLine($"rms residual {r.Rms:G4} (fraction of the tallest point), R-factor {r.RFactor:G4}, {r.Points} points");
+        }
+        else
+        {
+            o.WriteLine($"{(r.Converged ? "converged" : "NOT converged")}: {r.StopReason}");
+            o.WriteLine($"rms residual {r.Rms:G4} (fraction of the tallest point; {r.StartRms:G4} at the start), R-factor {r.RFactor:G4}, {r.Points} points, " +
+                        $"{r.Iterations} iterations in the final run, " +
+                        (r.StartWasBest ? "the given start was the best point seen" : $"{r.StartsAtBest} of {r.Starts} starts reached the best optimum") +
+                        (r.StartsJoined > 0 ? $" ({r.StartsJoined} joined another start's path on the way)" : ""));
+        }
+        if (r.RmsPerTrace.Count > 1)
+            o.WriteLine("rms per trace: " + string.Join(", ", r.RmsPerTrace.Select((v, d) => $"{v:G4} ({Path.GetFileName(data[d])})")));
+        if (r.Setup is { } setup)
+            o.WriteLine($"regions: {string.Join(" | ", setup.Traces.Select(t => string.Join("; ", t.Regions) + (t.RegionsAutomatic ? " (automatic)" : "")))}; " +
+                        $"shifts kept within {setup.ShiftWindowPpm:0.###} ppm of their start unless bounded (shift_window_ppm widens it)");
         o.WriteLine();
         var errorWidth = r.Bootstrap is null ? 12 : 22;
         o.WriteLine($"  {"parameter",-28} {"value",14} {(r.Bootstrap is null ? "std error" : "std error (bootstrap)").PadLeft(errorWidth)}  unit");

@@ -24,4 +24,7 @@ public sealed record FitReportData(
 {
     /// <summary>Heading of the error column (say what a second value in brackets is).</summary>
     public string ErrorHeading { get; init; } = "std. error";
+
+    /// <summary>The fit's setup, everything needed to run it again (the JSON report is written from the same record).</summary>
+    public SpinSim.Core.Fitting.Spectral.FitSetupRecord? Setup { get; init; }
 }

@@ -85,6 +85,12 @@ public static class HtmlFitReport
             ? E("ul", new XAttribute("class", "warnings"), warnings.Select(w => E("li", w ?? "")))
             : E("p", "None."));
 
+        if (data.Setup is { } setup)
+        {
+            body.Add(E("h2", "Setup (enough to run the fit again)"));
+            body.Add(Table(["item", "value"], setup.Rows().Select(r => new[] { Cell(r.Label), Cell(r.Value) })));
+        }
+
         body.Add(E("h2", "Inputs"));
         body.Add(data.Inputs is { Count: > 0 } inputs
             ? Table(["file", "SHA-256"], inputs.Select(i => new[] { Cell(i.Name), E("td", E("code", i.Sha256 ?? "")) }))

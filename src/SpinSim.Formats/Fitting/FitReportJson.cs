@@ -12,15 +12,26 @@ namespace SpinSim.Formats.Fitting;
 /// </summary>
 public static class FitReportJson
 {
+    /// <summary>
+    /// Version of this report's layout: 2 added <c>setup</c> (everything needed to rerun the fit), <c>rms_per_trace</c>,
+    /// <c>start_rms</c>, <c>start_was_best</c> and <c>overlay</c>.
+    /// </summary>
+    public const int SchemaVersion = 2;
+
     public static string Write(SpectrumFitResult result, IEnumerable<(string Name, string Sha256)> inputs, string version, DateTimeOffset created)
     {
         var root = new JsonObject
         {
+            ["schema_version"] = SchemaVersion,
             ["converged"] = result.Converged,
             ["stopped_by_user"] = result.Stopped,
             ["stop_reason"] = result.StopReason,
             ["rms"] = result.Rms,
             ["rms_unit"] = "fraction of the tallest measured point in the fitted regions",
+            ["rms_per_trace"] = new JsonArray(result.RmsPerTrace.Select(r => (JsonNode)JsonValue.Create(r)).ToArray()),
+            ["start_rms"] = result.StartRms,
+            ["start_was_best"] = result.StartWasBest,
+            ["overlay"] = result.Overlay,
             ["r_factor"] = result.RFactor,
             ["points"] = result.Points,
             ["iterations"] = result.Iterations,
@@ -56,12 +67,53 @@ public static class FitReportJson
             },
             ["warnings"] = new JsonArray(result.Warnings.Select(w => (JsonNode)JsonValue.Create(w)!).ToArray()),
             ["note"] = "standard errors are s^2 (J^T J)^-1 with s^2 = RSS / (n - p); neighbouring points of a digitised spectrum are not independent, so they are optimistic",
+            ["setup"] = result.Setup is { } setup ? Setup(setup) : null,
             ["inputs"] = new JsonArray(inputs.Select(i => (JsonNode)new JsonObject { ["file"] = i.Name, ["sha256"] = i.Sha256 }).ToArray()),
             ["version"] = version,
             ["created"] = created.ToString("O"),
         };
         return root.ToJsonString(new JsonSerializerOptions { WriteIndented = true, Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
     }
+
+    private static JsonObject Setup(FitSetupRecord s) => new()
+    {
+        ["traces"] = new JsonArray(s.Traces.Select(t => (JsonNode)new JsonObject
+        {
+            ["source"] = t.Source,
+            ["format"] = t.Format,
+            ["field_mhz"] = t.FieldMHz,
+            ["regions_ppm"] = Ranges(t.Regions),
+            ["regions_automatic"] = t.RegionsAutomatic,
+            ["exclude_ppm"] = Ranges(t.Exclude),
+            ["processing"] = Strings(t.Processing),
+        }).ToArray()),
+        ["parameters"] = new JsonArray(s.Parameters.Select(p => (JsonNode)new JsonObject
+        {
+            ["name"] = p.Name,
+            ["kind"] = Kind(p.Kind),
+            ["start"] = p.Start,
+            ["lower"] = double.IsFinite(p.Lower) ? p.Lower : null,
+            ["upper"] = double.IsFinite(p.Upper) ? p.Upper : null,
+            ["bounds_given"] = p.BoundsGiven,
+            ["varied"] = p.Varied,
+            ["held_because"] = p.HeldBecause,
+            ["tied_with"] = p.TiedWith,
+        }).ToArray()),
+        ["ties"] = new JsonArray(s.Ties.Select(t => (JsonNode)Strings(t)).ToArray()),
+        ["starts"] = s.Starts,
+        ["seed"] = s.Seed,
+        ["lineshape"] = s.Lineshape,
+        ["shift_window_ppm"] = s.ShiftWindowPpm,
+        ["symmetries"] = Strings(s.Symmetries),
+        ["symmetries_tied"] = s.SymmetriesTied,
+        ["command_line"] = s.CommandLine,
+        ["version"] = s.Version,
+    };
+
+    private static JsonArray Ranges(IEnumerable<PpmRange> ranges) =>
+        new(ranges.Select(r => (JsonNode)new JsonArray(JsonValue.Create(r.High), JsonValue.Create(r.Low))).ToArray());
+
+    private static JsonArray Strings(IEnumerable<string> items) => new(items.Select(i => (JsonNode)JsonValue.Create(i)!).ToArray());
 
     public static string Kind(ParameterKind kind) => kind switch
     {

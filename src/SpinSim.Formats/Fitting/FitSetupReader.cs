@@ -27,6 +27,9 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 /// linewidth_per_nucleus = false
 /// starts = 8
 /// lineshape = "lorentzian"            # gaussian, voigt
+/// shift_window_ppm = 0.3              # shifts stay this close to their start unless bounded below
+/// hold_shifts_outside_regions = true  # false: vary shifts of nuclei with no line in the regions
+/// tie_symmetric = true                # false: do not tie the nuclei of [[symmetry]] tables
 /// [fit.bounds]
 /// "shift:HA" = [7.2, 7.5]
 /// </code>
@@ -35,11 +38,12 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 public static class FitSetupReader
 {
     private static readonly string[] Keys =
-        ["regions_ppm", "exclude_ppm", "vary", "fix", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape"];
+        ["regions_ppm", "exclude_ppm", "vary", "fix", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape",
+         "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric"];
 
-    public static FitSettings Read(FitSection? section, SpinSystem system, int traces)
+    public static FitSettings Read(FitSection? section, SpinSystem system, int traces, IReadOnlyList<MirrorSymmetry>? symmetries = null)
     {
-        var setup = new FitSetup();
+        var setup = new FitSetup { Symmetries = symmetries ?? [] };
         if (section is null) return new FitSettings(setup, null);
         var path = section.Path;
         Lineshape? shape = null;
@@ -84,6 +88,14 @@ public static class FitSetupReader
                 case "offset": setup = setup with { FitOffset = Bool(path, e) }; break;
                 case "phase": setup = setup with { FitPhase = Bool(path, e) }; break;
                 case "linewidth_per_nucleus": setup = setup with { PerNucleusWidth = Bool(path, e) }; break;
+                case "hold_shifts_outside_regions": setup = setup with { HoldShiftsOutsideRegions = Bool(path, e) }; break;
+                case "tie_symmetric": setup = setup with { TieSymmetric = Bool(path, e) }; break;
+                case "shift_window_ppm":
+                    var window = Number(path, e);
+                    if (!(window > 0))
+                        throw new FitSetupException(path, e.Line, $"shift_window_ppm is {window}", "Give a window above 0 ppm, for example 0.5");
+                    setup = setup with { ShiftWindowPpm = window };
+                    break;
                 case "starts":
                     var starts = Number(path, e);
                     if (starts is < 1 or > 64 || starts != Math.Floor(starts))
@@ -100,9 +112,18 @@ public static class FitSetupReader
                     throw new FitSetupException(path, e.Line, $"unknown key \"{e.Key}\" in [fit]", $"Allowed keys: {string.Join(", ", Keys)}");
             }
         }
+        var parameters = setup.BuildParameters(system, traces, 1.0);
+        var names = parameters.Select(p => p.Name).ToArray();
+        foreach (var e in section.Entries.Where(e => e.Table == "fit.bounds"))
+        {
+            var (low, high) = bounds[e.Key];
+            var start = parameters.FirstOrDefault(p => p.Name == e.Key)?.Start;
+            if (start is { } v && parameters.First(p => p.Name == e.Key).Kind != ParameterKind.Scale && !(v >= Math.Min(low, high) && v <= Math.Max(low, high)))
+                throw new FitSetupException(path, e.Line, $"the start of {e.Key}, {v:G6}, lies outside its bounds [{Math.Min(low, high):G6}, {Math.Max(low, high):G6}]",
+                    "Move the start value in the system file inside the bounds, or widen the bounds");
+        }
         setup = setup with { Bounds = bounds };
 
-        var names = setup.BuildParameters(system, traces, 1.0).Select(p => p.Name).ToArray();
         foreach (var (name, line, pattern) in nameLines)
         {
             var known = pattern ? names.Any(n => FitSetup.Matches(name, n)) : names.Contains(name);

@@ -15,6 +15,9 @@ public sealed record SpinSystemDocument(
     SourceLines Lines,
     FitSection? Fit = null)
 {
+    /// <summary>Symmetries declared with [[symmetry]] tables (checked against the system).</summary>
+    public IReadOnlyList<MirrorSymmetry> Symmetries { get; init; } = [];
+
     /// <summary>The system's plausibility warnings, each naming the file and line of the value it is about.</summary>
     public IReadOnlyList<string> Warnings => Describe(System.Warnings);
 

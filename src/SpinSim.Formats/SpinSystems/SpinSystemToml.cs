@@ -17,6 +17,8 @@ namespace SpinSim.Formats.SpinSystems;
 /// id = "Me"; shift_ppm = 1.2; count = 3; isotope = "1H"; linewidth_hz = 0.9
 /// [[coupling]]
 /// between = ["Me", "CH2"]; j_hz = 7.1
+/// [[symmetry]]                  # optional: nuclei a symmetry of the molecule exchanges, in pairs
+/// swap = [["HA", "HA'"], ["HB", "HB'"]]
 /// </code>
 /// Unknown keys are errors (a typo must not load as a silently different system).
 /// </summary>
@@ -25,6 +27,7 @@ public static class SpinSystemToml
     private static readonly string[] TopKeys = ["title", "field_mhz", "field_tesla", "linewidth_hz", "observe"];
     private static readonly string[] NucleusKeys = ["id", "shift_ppm", "count", "isotope", "linewidth_hz"];
     private static readonly string[] CouplingKeys = ["between", "j_hz"];
+    private static readonly string[] SymmetryKeys = ["swap"];
 
     public static SpinSystemDocument Read(string path)
     {
@@ -69,6 +72,7 @@ public static class SpinSystemToml
         var couplings = new List<Coupling>();
         var couplingLines = new List<int>();
         var fitEntries = new List<FitEntry>();
+        var symmetries = new List<(MirrorSymmetry Symmetry, int Line)>();
         foreach (var table in doc.Tables)
         {
             var name = KeyOf(table.Name!);
@@ -76,19 +80,25 @@ public static class SpinSystemToml
             var isArray = table is TableArraySyntax;
             if (name == "nucleus" && isArray) { nuclei.Add(ReadNucleus(path, table, line)); nucleusLines.Add(line); }
             else if (name == "coupling" && isArray) { couplings.Add(ReadCoupling(path, table, line)); couplingLines.Add(line); }
+            else if (name == "symmetry" && isArray) symmetries.Add((ReadSymmetry(path, table, line), line));
             else if (name == "fit" || name.StartsWith("fit.", StringComparison.Ordinal))
                 foreach (var kv in table.Items) fitEntries.Add(new FitEntry(name, KeyOf(kv.Key!), Value(path, kv.Value!, Line(kv)), Line(kv)));
-            else if (name is "nucleus" or "coupling")
+            else if (name is "nucleus" or "coupling" or "symmetry")
                 throw new SpinSystemFileException(path, line, $"[{name}] must be written [[{name}]] (one double-bracket table per {name})", $"Write [[{name}]]");
             else
-                throw new SpinSystemFileException(path, line, $"unknown table [{name}]", "Use [[nucleus]], [[coupling]] or [fit]");
+                throw new SpinSystemFileException(path, line, $"unknown table [{name}]", "Use [[nucleus]], [[coupling]], [[symmetry]] or [fit]");
         }
         if (nuclei.Count == 0)
             throw new SpinSystemFileException(path, null, "no nuclei are defined", "Add at least one [[nucleus]] table with id and shift_ppm");
 
-        return SpinSystemDocument.Build(path, new FieldMHz(fieldMHz.Value), nuclei, couplings, title, observed, defaultWidth,
+        var document = SpinSystemDocument.Build(path, new FieldMHz(fieldMHz.Value), nuclei, couplings, title, observed, defaultWidth,
             new SourceLines(fieldLine, nucleusLines.Select(l => (int?)l).ToArray(), couplingLines.Select(l => (int?)l).ToArray(), widthLine),
             fitEntries.Count > 0 ? new FitSection(path, fitEntries) : null);
+        foreach (var (symmetry, line) in symmetries)
+            if (symmetry.Problems(document.System) is { Count: > 0 } wrong)
+                throw new SpinSystemFileException(path, line, $"this [[symmetry]] does not fit the system: {wrong[0]}",
+                    "List in swap only pairs of nuclei that the molecule's symmetry exchanges, with every coupling's mirror coupling present");
+        return document with { Symmetries = symmetries.Select(s => s.Symmetry).ToArray() };
     }
 
     /// <summary>Reads a fit file: a TOML file holding only a [fit] table (and [fit.bounds]), the same keys as in a system file.</summary>
@@ -173,6 +183,23 @@ public static class SpinSystemToml
         if (between is null) throw new SpinSystemFileException(path, tableLine, "this [[coupling]] does not say which nuclei it joins", "Add between = [\"H1\", \"H2\"]");
         if (j is null) throw new SpinSystemFileException(path, tableLine, $"coupling {between[0]}-{between[1]} has no j_hz", "Add j_hz = 7.5 (signed, in Hz)");
         return new Coupling(between[0], between[1], new CouplingHz(j.Value));
+    }
+
+    private static MirrorSymmetry ReadSymmetry(string path, TableSyntaxBase table, int tableLine)
+    {
+        MirrorSymmetry? symmetry = null;
+        foreach (var kv in table.Items)
+        {
+            var key = KeyOf(kv.Key!);
+            if (key != "swap") throw UnknownKey(path, Line(kv), key, SymmetryKeys, "in [[symmetry]]");
+            if (kv.Value is not ArraySyntax pairs || pairs.Items.ChildrenCount == 0 || pairs.Items.Any(p =>
+                    p.Value is not ArraySyntax pair || pair.Items.ChildrenCount != 2 || pair.Items.Any(i => i.Value is not StringValueSyntax)))
+                throw new SpinSystemFileException(path, Line(kv), "swap must be a list of pairs of nucleus ids",
+                    "Write swap = [[\"HA\", \"HA'\"], [\"HB\", \"HB'\"]] (each pair exchanged by the same symmetry)");
+            symmetry = new MirrorSymmetry(pairs.Items.Select(p => ((ArraySyntax)p.Value!).Items.Select(i => ((StringValueSyntax)i.Value!).Value!).ToArray())
+                .Select(p => (p[0], p[1])).ToArray());
+        }
+        return symmetry ?? throw new SpinSystemFileException(path, tableLine, "this [[symmetry]] lists no pairs", "Add swap = [[\"HA\", \"HA'\"], [\"HB\", \"HB'\"]]");
     }
 
     private static int Line(SyntaxNodeBase node) => node.Span.Start.Line + 1;
@@ -265,7 +292,8 @@ public static class SpinSystemToml
     }
 
     /// <summary>Writes a system in the same schema; the output reads back to an equal system.</summary>
-    public static string Write(SpinSystem system, WidthHz? defaultWidth = null, IEnumerable<string>? headerComments = null)
+    public static string Write(SpinSystem system, WidthHz? defaultWidth = null, IEnumerable<string>? headerComments = null,
+        IEnumerable<MirrorSymmetry>? symmetries = null)
     {
         var inv = CultureInfo.InvariantCulture;
         var sb = new StringBuilder();
@@ -288,6 +316,11 @@ public static class SpinSystemToml
             sb.AppendLine().AppendLine("[[coupling]]");
             sb.Append("between = [").Append(Quote(c.A)).Append(", ").Append(Quote(c.B)).AppendLine("]");
             sb.Append("j_hz = ").AppendLine(c.J.Value.ToString("R", inv));
+        }
+        foreach (var symmetry in symmetries ?? [])
+        {
+            sb.AppendLine().AppendLine("[[symmetry]]");
+            sb.Append("swap = [").Append(string.Join(", ", symmetry.Pairs.Select(p => $"[{Quote(p.A)}, {Quote(p.B)}]"))).AppendLine("]");
         }
         return sb.ToString();
     }

@@ -56,12 +56,8 @@ public static class SpectrumFitTestData
             TraceOrigin.Describe("synthetic test trace (invented values)"));
     }
 
-    public static SpectrumFitProblem Problem(SpinSystem start, SpectrumTrace trace, FitSetup setup, double widthHz)
-    {
-        var regions = setup.Regions ?? FitSetup.DefaultRegions(start, trace.ObserveMHz!.Value, widthHz);
-        return new SpectrumFitProblem(start, [new FitDataset(trace, regions, setup.Exclude)],
-            setup.BuildParameters(start, 1, widthHz), setup.Ties, Lineshape.Lorentzian);
-    }
+    public static SpectrumFitProblem Problem(SpinSystem start, SpectrumTrace trace, FitSetup setup, double widthHz) =>
+        setup.Problem(start, [trace], widthHz, Lineshape.Lorentzian);
 
     /// <summary>The system with every shift moved by the given Hz and every coupling scaled.</summary>
     public static SpinSystem Perturbed(SpinSystem system, Func<int, double> shiftHz, Func<int, double> couplingFactor) =>

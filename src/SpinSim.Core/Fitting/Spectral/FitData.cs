@@ -16,6 +16,12 @@ public readonly record struct PpmRange(double A, double B)
 /// <summary>A measured trace and the parts of it that a fit uses: the regions, less the excluded intervals.</summary>
 public sealed record FitDataset(SpectrumTrace Trace, IReadOnlyList<PpmRange> Regions, IReadOnlyList<PpmRange> Exclude)
 {
+    /// <summary>True when the regions were worked out from the start's lines rather than given.</summary>
+    public bool RegionsAutomatic { get; init; }
+
+    /// <summary>How the data were turned into this spectrum (from a time-domain signal), one step a line; empty for a spectrum as read.</summary>
+    public IReadOnlyList<string> Processing { get; init; } = [];
+
     public double ObserveMHz => Trace.ObserveMHz ?? throw new InvalidOperationException("a fitted trace needs its observe frequency");
 }
 

@@ -27,6 +27,12 @@ public sealed record FitParameter(
 {
     public string Unit => UnitOf(Kind);
 
+    /// <summary>True when the bounds come from the user's setup rather than the defaults.</summary>
+    public bool BoundsGiven { get; init; }
+
+    /// <summary>Why a parameter the setup would vary is held instead (null when it is not).</summary>
+    public string? HeldBecause { get; init; }
+
     /// <summary>The unit a parameter kind is stated in ("" for the dimensionless scale and baseline).</summary>
     public static string UnitOf(ParameterKind kind) => kind switch
     {

@@ -1,3 +1,4 @@
+using SpinSim.Core.Errors;
 using System.Text.RegularExpressions;
 using SpinSim.Core.Engine;
 using SpinSim.Core.Model;
@@ -24,8 +25,111 @@ public sealed record FitSetup
     public bool PerNucleusWidth { get; init; }
     public int Starts { get; init; } = 8;
 
+    /// <summary>
+    /// Each shift without a bound of its own stays within this many ppm of its start: far enough for a misreferenced
+    /// spectrum or a rough start, near enough that a nucleus cannot wander into another group's multiplet.
+    /// </summary>
+    public double ShiftWindowPpm { get; init; } = DefaultShiftWindowPpm;
+
+    public const double DefaultShiftWindowPpm = 0.3;
+
+    /// <summary>
+    /// Hold the shift of a nucleus none of whose lines falls in a fitted region (its couplings to observed nuclei stay
+    /// free): with no data of its own it would move wherever it helps another multiplet, as a phantom line.
+    /// </summary>
+    public bool HoldShiftsOutsideRegions { get; init; } = true;
+
+    /// <summary>Symmetries declared in the spin-system file; their shifts and couplings are tied unless <see cref="TieSymmetric"/> is false.</summary>
+    public IReadOnlyList<MirrorSymmetry> Symmetries { get; init; } = [];
+
+    public bool TieSymmetric { get; init; } = true;
+
     /// <summary>Margin added around the lines for the default regions: 10 widths plus this many Hz (room for shifts to move).</summary>
     public const double RegionMarginHz = 25;
+
+    /// <summary>
+    /// The fit problem for <paramref name="system"/> (its values are the start) and <paramref name="traces"/>: regions as
+    /// given or worked out per trace, the parameters with their bounds, the user's ties plus those of the declared
+    /// symmetries, shifts held for nuclei outside every region, and a notice for each such decision.
+    /// </summary>
+    /// <exception cref="InputException">A start outside its bounds.</exception>
+    public SpectrumFitProblem Problem(SpinSystem system, IReadOnlyList<Traces.SpectrumTrace> traces, double startWidthHz, Lineshape shape)
+    {
+        var data = traces.Select(t => new FitDataset(t, Regions ?? DefaultRegions(system, t.ObserveMHz!.Value, startWidthHz), Exclude)
+            { RegionsAutomatic = Regions is null }).ToArray();
+        var parameters = BuildParameters(system, traces.Count, startWidthHz).ToList();
+        var notes = new List<string>();
+        if (HoldShiftsOutsideRegions)
+            foreach (var id in NucleiOutsideRegions(system, data))
+            {
+                var i = parameters.FindIndex(p => p.Name == $"shift:{id}");
+                if (i < 0 || !parameters[i].Vary) continue;
+                parameters[i] = parameters[i] with { Vary = false, HeldBecause = "outside every fitted region" };
+                notes.Add($"no line of {id} falls in a fitted region, so its shift is held at {parameters[i].Start:0.####} ppm " +
+                          "(its couplings stay free); add it to the regions, or set hold_shifts_outside_regions = false to vary it anyway");
+            }
+        var ties = Ties.ToList();
+        if (TieSymmetric)
+            foreach (var symmetry in Symmetries) ties.AddRange(SymmetryTies(symmetry, parameters));
+        return new SpectrumFitProblem(system, data, parameters, ties, shape) { Notes = notes, Symmetries = Symmetries, ShiftWindowPpm = ShiftWindowPpm, SymmetriesTied = TieSymmetric };
+    }
+
+    /// <summary>Tie groups that make a fit respect <paramref name="symmetry"/>: each shift, width and coupling with its image.</summary>
+    public static IEnumerable<IReadOnlyList<string>> SymmetryTies(MirrorSymmetry symmetry, IReadOnlyList<FitParameter> parameters)
+    {
+        var names = parameters.Select(p => p.Name).ToHashSet(StringComparer.Ordinal);
+        var done = new HashSet<string>(StringComparer.Ordinal);
+        foreach (var p in parameters.Where(p => p.Kind is ParameterKind.ShiftPpm or ParameterKind.JHz or ParameterKind.LinewidthHz && p.Nuclei.Count > 0))
+        {
+            var image = p.Kind switch
+            {
+                ParameterKind.JHz => ImageCoupling(symmetry, p.Nuclei[0], p.Nuclei[1], names),
+                _ => p.Name[..(p.Name.IndexOf(':') + 1)] + symmetry.Image(p.Nuclei[0]),
+            };
+            if (image is null || image == p.Name || !names.Contains(image) || !done.Add(p.Name) || !done.Add(image)) continue;
+            yield return [p.Name, image];
+        }
+    }
+
+    private static string? ImageCoupling(MirrorSymmetry symmetry, string a, string b, HashSet<string> names)
+    {
+        var (ia, ib) = (symmetry.Image(a), symmetry.Image(b));
+        return names.Contains($"j:{ia}-{ib}") ? $"j:{ia}-{ib}" : names.Contains($"j:{ib}-{ia}") ? $"j:{ib}-{ia}" : null;
+    }
+
+    /// <summary>
+    /// Observed nuclei that carry (almost) none of the line intensity inside the fitted regions of any trace: at each
+    /// trace's field, each line is shared out among the nuclei that flip in it, and a nucleus with less than
+    /// <see cref="OutsideShare"/> of its share inside the regions counts as outside them.
+    /// </summary>
+    public static IReadOnlyList<string> NucleiOutsideRegions(SpinSystem system, IReadOnlyList<FitDataset> data)
+    {
+        var inside = new double[system.Nuclei.Count];
+        var total = new double[system.Nuclei.Count];
+        foreach (var d in data)
+        {
+            var atField = system.WithField(new Units.FieldMHz(d.ObserveMHz * 100 / system.Observed.FrequencyRatioPercent));
+            var lines = SpectrumEngine.Compute(atField);
+            for (var l = 0; l < lines.Lines.Count; l++)
+            {
+                var ppm = lines.Lines[l].ShiftPpm;
+                var seen = d.Regions.Any(r => r.Contains(ppm)) && !d.Exclude.Any(r => r.Contains(ppm));
+                var origin = lines.OriginOf(l);
+                for (var e = 0; e < origin.Length; e++)
+                {
+                    var share = lines.Lines[l].Intensity * Math.Max(0, origin[e]);
+                    total[e] += share;
+                    if (seen) inside[e] += share;
+                }
+            }
+        }
+        return Enumerable.Range(0, system.Nuclei.Count)
+            .Where(e => system.Nuclei[e].Isotope == system.Observed && total[e] > 0 && inside[e] < OutsideShare * total[e])
+            .Select(e => system.Nuclei[e].Id).ToArray();
+    }
+
+    /// <summary>A nucleus with less than this share of its line intensity inside the regions is outside them.</summary>
+    public const double OutsideShare = 0.01;
 
     public static bool Matches(string pattern, string name) =>
         Regex.IsMatch(name, "^" + Regex.Escape(pattern).Replace("\\*", ".*") + "$", RegexOptions.CultureInvariant);
@@ -65,8 +169,13 @@ public sealed record FitSetup
     {
         var vary = Vary.Any(p => Matches(p, name)) || kind is ParameterKind.OffsetHz or ParameterKind.PhaseDeg;
         if (Fix.Any(p => Matches(p, name))) vary = false;
-        if (Bounds.TryGetValue(name, out var b)) (lower, upper) = (Math.Min(b.Low, b.High), Math.Max(b.Low, b.High));
-        return new FitParameter(name, kind, nuclei, dataset, index, start, lower, upper, vary);
+        var given = Bounds.TryGetValue(name, out var b);
+        if (given) (lower, upper) = (Math.Min(b.Low, b.High), Math.Max(b.Low, b.High));
+        else if (kind == ParameterKind.ShiftPpm) (lower, upper) = (start - ShiftWindowPpm, start + ShiftWindowPpm);
+        if (kind != ParameterKind.Scale && !(start >= lower && start <= upper))
+            throw new InputException(null, null, $"the start of {name}, {start:G6}, lies outside its bounds [{lower:G6}, {upper:G6}]",
+                "Change the start value in the system file, or widen the bounds in [fit.bounds] (shift_window_ppm for the default shift window)");
+        return new FitParameter(name, kind, nuclei, dataset, index, start, lower, upper, vary) { BoundsGiven = given };
     }
 
     /// <summary>The default regions: the visible lines at the trace's field, each widened by the margin, merged.</summary>

@@ -64,6 +64,32 @@ public sealed record SpectrumFitResult
     public required WidthHz? FittedWidth { get; init; }
     public required IReadOnlyList<FittedTrace> Traces { get; init; }
 
+    /// <summary>Root-mean-square residual of each trace, in units of its tallest fitted point.</summary>
+    public required IReadOnlyList<double> RmsPerTrace { get; init; }
+
+    /// <summary>The rms residual of the start as given (same units as <see cref="Rms"/>).</summary>
+    public double StartRms { get; init; }
+
+    /// <summary>The search ended worse than the start, so the result is the start refined by itself.</summary>
+    public bool StartWasBest { get; init; }
+
+    /// <summary>Nothing was varied: the simulation at the given values compared with the data.</summary>
+    public bool Overlay { get; init; }
+
+    /// <summary>Everything needed to run the fit again (the reports are written from it).</summary>
+    public FitSetupRecord? Setup { get; init; }
+
+    /// <summary>1H-1H couplings larger than this in magnitude are implausible (common practice, no source: geminal sp3 up to about 16 Hz, trans vinyl up to about 18 Hz).</summary>
+    public const double PlausibleProtonCouplingHz = 20;
+
+    /// <summary>The result with the sentence that the start was best (and what the search reached) among its warnings.</summary>
+    internal SpectrumFitResult SayingStartWasBest(double searchRms) => this with
+    {
+        StartWasBest = true,
+        Warnings = [$"the given start (rms {StartRms:G4}) fitted better than anything the search reached from it (rms {searchRms:G4}); " +
+                    "the result is the start, refined on its own: check the start and the regions", .. Warnings],
+    };
+
     internal static SpectrumFitResult Build(SpectrumFitProblem problem, ParameterLayout layout, SpectralModel model, double[] free,
         LeastSquaresResult result, int starts, int reached, bool stopped)
     {
@@ -95,8 +121,15 @@ public sealed record SpectrumFitResult
         for (var f = 0; f < layout.FreeCount; f++)
             if (result.AtBound[f]) warnings.Add($"{names[f]} ended at a bound ({free[f]:G6}); widen the bound or check the start");
         warnings.AddRange(Identifiability.Check(layout, model, full));
+        foreach (var p in parameters.Where(p => p.Kind == ParameterKind.JHz && p.Varied && Math.Abs(p.Value) > PlausibleProtonCouplingHz))
+            if (p.Nuclei.All(id => problem.System.Nuclei[problem.System.IndexOf(id)].Isotope == Model.Isotope.H1))
+                warnings.Add($"{p.Name} = {p.Value:0.##} Hz is larger than any usual 1H-1H coupling (|J| above {PlausibleProtonCouplingHz:0} Hz): " +
+                             "check the start, the regions and whether a nucleus has lines outside them");
+        if (!problem.SymmetriesTied) warnings.AddRange(SymmetryDrift(problem, parameters));
+        warnings.InsertRange(0, problem.Notes);
 
         var traces = new List<FittedTrace>();
+        var rmsPerTrace = new List<double>();
         double rss = 0, sumSquares = 0;
         var points = 0;
         for (var d = 0; d < model.Data.Count; d++)
@@ -109,12 +142,15 @@ public sealed record SpectrumFitResult
             traces.Add(new FittedTrace(
                 new SpectrumTrace(data.Ppm.ToArray(), y, measured.ObserveMHz, measured.Nucleus, measured.Origin),
                 m, m.Zip(y, (a, b) => a - b).ToArray()));
+            double traceRss = 0;
             for (var i = 0; i < data.Count; i++)
             {
                 var r = fitted[i] - data.Y[i];
-                rss += r * r;
+                traceRss += r * r;
                 sumSquares += data.Y[i] * data.Y[i];
             }
+            rss += traceRss;
+            rmsPerTrace.Add(Math.Sqrt(traceRss / Math.Max(1, data.Count)));
             points += data.Count;
         }
 
@@ -128,7 +164,8 @@ public sealed record SpectrumFitResult
             if (p.Index < 0) width = new WidthHz(full[i]);
             else nuclei[p.Index] = nuclei[p.Index] with { Width = new WidthHz(full[i]) };
         }
-        system = system.WithNuclei(nuclei);
+        // The field is the data's (the first trace's), whatever the start file said: that is the field the values were fitted at.
+        system = system.WithNuclei(nuclei).WithField(new FieldMHz(problem.Data[0].ObserveMHz * 100 / system.Observed.FrequencyRatioPercent));
 
         return new SpectrumFitResult
         {
@@ -148,6 +185,31 @@ public sealed record SpectrumFitResult
             FittedSystem = system,
             FittedWidth = width,
             Traces = traces,
+            RmsPerTrace = rmsPerTrace,
         };
     }
+
+    /// <summary>
+    /// For declared symmetries left untied: a warning for each shift or coupling that ended more than three combined
+    /// standard errors (and more than 0.01 Hz) away from its mirror partner, which the symmetry says it equals.
+    /// </summary>
+    private static IEnumerable<string> SymmetryDrift(SpectrumFitProblem problem, IReadOnlyList<FittedParameter> parameters)
+    {
+        var fitParameters = problem.Parameters;
+        var byName = parameters.ToDictionary(p => p.Name, StringComparer.Ordinal);
+        foreach (var symmetry in problem.Symmetries)
+            foreach (var pair in FitSetup.SymmetryTies(symmetry, fitParameters))
+            {
+                var (a, b) = (byName[pair[0]], byName[pair[1]]);
+                if (!a.Varied && !b.Varied) continue;
+                var hz = a.Kind == ParameterKind.ShiftPpm ? problem.Data[0].ObserveMHz : 1.0;
+                var gap = Math.Abs(a.Value - b.Value);
+                var error = Math.Sqrt(Square(a.StdError) + Square(b.StdError));
+                if (gap * hz > 0.01 && !(gap <= 3 * error))
+                    yield return $"{a.Name} and {b.Name} drifted apart ({a.Value:G6} and {b.Value:G6} {a.Unit}) although the declared symmetry " +
+                                 "makes them equal: tie them (the default), or check the symmetry declaration";
+            }
+    }
+
+    private static double Square(double v) => double.IsFinite(v) ? v * v : 0;
 }

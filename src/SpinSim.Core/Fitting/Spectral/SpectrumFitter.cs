@@ -12,7 +12,20 @@ public sealed record SpectrumFitProblem(
     IReadOnlyList<FitDataset> Data,
     IReadOnlyList<FitParameter> Parameters,
     IReadOnlyList<IReadOnlyList<string>> Ties,
-    Lineshape Shape);
+    Lineshape Shape)
+{
+    /// <summary>What building the problem decided on the user's behalf (shifts held, ties added), in words.</summary>
+    public IReadOnlyList<string> Notes { get; init; } = [];
+
+    /// <summary>Declared symmetries: their partners are compared after the fit when they were not tied.</summary>
+    public IReadOnlyList<MirrorSymmetry> Symmetries { get; init; } = [];
+
+    /// <summary>The default window of shifts around their start (stated in the report).</summary>
+    public double ShiftWindowPpm { get; init; } = FitSetup.DefaultShiftWindowPpm;
+
+    /// <summary>Whether the declared symmetries were tied (false: their partners are compared after the fit).</summary>
+    public bool SymmetriesTied { get; init; } = true;
+}
 
 /// <summary>How to search.</summary>
 /// <param name="Starts">Number of starts: the given one plus random perturbations of shifts and couplings.</param>
@@ -44,86 +57,193 @@ public static class SpectrumFitter
 
     public static SpectrumFitResult Fit(SpectrumFitProblem problem, SpectrumFitOptions? options = null)
     {
-        options ??= new SpectrumFitOptions();
-        // The engine may drop lines ten times weaker than those the model already fades out smoothly
-        // (SpectralModel.NegligibleIntensity, relative to one nucleus); a higher floor would put steps into the
-        // finite-difference derivatives as lines cross it.
-        var floor = SpectralModel.NegligibleIntensity / 10 / Math.Max(1, problem.System.ObservedNucleusCount);
-        var engine = (options.Engine ?? EngineOptions.Default) with { RelativeIntensityFloor = floor, PoolWeakLines = false };
-        var prepared = problem.Data.Select(PreparedData.From).ToArray();
-        var layout = new ParameterLayout(StartScales(problem, prepared, engine), problem.Ties);
-        if (layout.FreeCount == 0) throw new InputException(null, null, "nothing to fit: every parameter is fixed", "Vary at least one parameter (vary = [\"shift:*\"] in the [fit] table)");
-        var points = prepared.Sum(p => p.Count);
-        if (points <= layout.FreeCount)
-            throw new InputException(null, null, $"the fitted regions hold {points} points, not more than the {layout.FreeCount} free parameters", "Widen the regions (regions_ppm in the [fit] table)");
+        var search = new Search(problem, options ?? new SpectrumFitOptions());
+        if (search.Layout.FreeCount == 0) return search.Overlay();
+        var points = search.Prepared.Sum(p => p.Count);
+        if (points <= search.Layout.FreeCount)
+            throw new InputException(null, null, $"the fitted regions hold {points} points, not more than the {search.Layout.FreeCount} free parameters", "Widen the regions (regions_ppm in the [fit] table)");
 
-        var stages = Stages(problem, options);
-        var starts = StartPoints(problem, layout, options);
-        var (lower, upper) = layout.FreeBounds();
-        // Shifts without bounds of their own stay within the fitted regions: outside them a nucleus has no data to
-        // pull it back, and the scale would absorb its loss.
-        var regionLow = problem.Data.Min(d => d.Regions.Min(r => r.Low));
-        var regionHigh = problem.Data.Max(d => d.Regions.Max(r => r.High));
-        for (var f = 0; f < layout.FreeCount; f++)
-            if (layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.ShiftPpm)
-                (lower[f], upper[f]) = (Math.Max(lower[f], regionLow), Math.Min(upper[f], regionHigh));
-        for (var k = 0; k < starts.Count; k++)
-        {
-            if (options.Continuation) starts[k] = AlignCentroids(problem, layout, starts[k]);
-            for (var f = 0; f < starts[k].Length; f++) starts[k][f] = Math.Clamp(starts[k][f], lower[f], upper[f]);
-        }
-
-        // Every start runs every stage on thinned points (>= 10 per linewidth at the last stage); the best is then
-        // polished on all points, and that run gives the reported statistics. The stages run one after the other for
-        // all starts: after each broadened stage, a start that has come within a small fraction of the stage's
-        // linewidth of another start is on that start's path from there on (the narrower stages see no difference),
-        // so it stops and shares the other's outcome.
-        // The broadened, thinned data of each stage is the same for every start.
-        var stageData = stages.Select(stage => prepared.Select((p, d) => p.Broadened(problem.Data[d].Trace, stage.BroadeningHz, stage.Stride)).ToArray()).ToArray();
-        var current = starts.Select(x => (double[])x.Clone()).ToArray();
-        var last = new LeastSquaresResult?[starts.Count];
-        var follows = Enumerable.Range(0, starts.Count).ToArray();
-        var running = Enumerable.Range(0, starts.Count).ToList();
-        var widthHz = StartWidthHz(problem);
-        for (var k = 0; k < stages.Count; k++)
-        {
-            if (options.Cancel.IsCancellationRequested && last[0] is not null) break;
-            var stage = stages[k];
-            Parallel.ForEach(running, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
-            {
-                last[s] = RunStage(problem, layout, stageData[k], engine, stage, current[s], lower, upper, options, s, k, stages.Count);
-                current[s] = last[s]!.Parameters;
-            });
-            if (stage.BroadeningHz <= 0 || !options.JoinStarts) continue;
-            var toleranceHz = JoinFraction * (stage.BroadeningHz + widthHz);
-            var kept = new List<int>();
-            foreach (var s in running)
-            {
-                var leader = kept.FirstOrDefault(t => SpinDistanceHz(problem, layout, current[s], current[t]) <= toleranceHz, -1);
-                if (leader >= 0) follows[s] = leader; else kept.Add(s);
-            }
-            running = kept;
-        }
-        var outcomes = Enumerable.Range(0, starts.Count).Select(s =>
-        {
-            var leader = s;
-            while (follows[leader] != leader) leader = follows[leader];
-            return (Free: current[leader], Result: last[leader]!);
-        }).ToArray();
-        var joined = starts.Count - running.Count;
-
+        var starts = StartPoints(problem, search.Layout, search.Options).Select(search.Aligned).ToList();
+        var outcomes = search.RunStages(starts, out var joined);
         var bestCost = outcomes.Min(o => o.Result.ResidualSumOfSquares);
         var atBest = outcomes.Where(o => o.Result.ResidualSumOfSquares <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
-        var reached = atBest.Count;
         // Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'): keep the user's labels
         // by taking, among the starts at the best cost, the one whose shifts moved least from the given start.
-        var best = atBest.OrderBy(o => ShiftDistance(layout, o.Free, starts[0])).First();
-        var polish = options.Cancel.IsCancellationRequested
-            ? best.Result
-            : RunStage(problem, layout, prepared, engine, new Stage(0, 1, false), best.Free, lower, upper, options, -1, stages.Count, stages.Count + 1);
-        var finalModel = new SpectralModel(problem.System, layout, prepared, problem.Shape, engine, 0);
-        return SpectrumFitResult.Build(problem, layout, finalModel, polish.Parameters, polish, starts.Count, reached,
-            options.Cancel.IsCancellationRequested) with { StartsJoined = joined };
+        var best = atBest.OrderBy(o => ShiftDistance(search.Layout, o.Free, starts[0])).First();
+        return search.Finish(best.Free, best.Result, starts.Count, atBest.Count, joined);
+    }
+
+    /// <summary>
+    /// One fit's fixed parts (prepared data, layout, bounds, continuation stages and their data) and the steps every
+    /// start goes through: <see cref="RunStages"/> takes any set of start points through the same stages as a normal
+    /// fit, so a caller can refit from a point of its own (a flipped sign, a guess) exactly as from the given start.
+    /// </summary>
+    internal sealed class Search
+    {
+        public readonly SpectrumFitProblem Problem;
+        public readonly SpectrumFitOptions Options;
+        public readonly EngineOptions Engine;
+        public readonly PreparedData[] Prepared;
+        public readonly ParameterLayout Layout;
+        public readonly double[] Lower, Upper;
+        private readonly List<Stage> _stages;
+        private readonly PreparedData[][] _stageData;
+
+        /// <summary>The start as given (bounds applied, scale from the data): the point the result may not be worse than.</summary>
+        public readonly double[] GivenStart;
+
+        public Search(SpectrumFitProblem problem, SpectrumFitOptions options)
+        {
+            Problem = problem;
+            Options = options;
+            // The engine may drop lines ten times weaker than those the model already fades out smoothly
+            // (SpectralModel.NegligibleIntensity, relative to one nucleus); a higher floor would put steps into the
+            // finite-difference derivatives as lines cross it.
+            var floor = SpectralModel.NegligibleIntensity / 10 / Math.Max(1, problem.System.ObservedNucleusCount);
+            Engine = (options.Engine ?? EngineOptions.Default) with { RelativeIntensityFloor = floor, PoolWeakLines = false };
+            Prepared = problem.Data.Select(PreparedData.From).ToArray();
+            Layout = new ParameterLayout(StartScales(problem, Prepared, Engine), problem.Ties);
+            (Lower, Upper) = Layout.FreeBounds();
+            // Shifts also stay within the fitted regions: outside them a nucleus has no data to pull it back, and the
+            // scale would absorb its loss.
+            var regionLow = problem.Data.Min(d => d.Regions.Min(r => r.Low));
+            var regionHigh = problem.Data.Max(d => d.Regions.Max(r => r.High));
+            for (var f = 0; f < Layout.FreeCount; f++)
+                if (Layout.Parameters[Layout.FreeRepresentatives[f]].Kind == ParameterKind.ShiftPpm)
+                    (Lower[f], Upper[f]) = (Math.Max(Lower[f], Math.Min(regionLow, Layout.FreeStart()[f])), Math.Min(Upper[f], Math.Max(regionHigh, Layout.FreeStart()[f])));
+            GivenStart = Layout.FreeStart();
+            for (var f = 0; f < GivenStart.Length; f++) GivenStart[f] = Math.Clamp(GivenStart[f], Lower[f], Upper[f]);
+            _stages = Stages(problem, options);
+            // The broadened, thinned data of each stage is the same for every start.
+            _stageData = _stages.Select(stage => Prepared.Select((p, d) => p.Broadened(problem.Data[d].Trace, stage.BroadeningHz, stage.Stride)).ToArray()).ToArray();
+        }
+
+        /// <summary>
+        /// Takes every start through every stage on thinned points (>= 10 per linewidth at the last stage). The stages
+        /// run one after the other for all starts: after each broadened stage, a start that has come within a small
+        /// fraction of the stage's linewidth of another start is on that start's path from there on (the narrower
+        /// stages see no difference), so it stops and shares the other's outcome. The points are taken as they are
+        /// (see <see cref="Aligned"/>). Returns each start's outcome.
+        /// </summary>
+        public (double[] Free, LeastSquaresResult Result)[] RunStages(IReadOnlyList<double[]> points, out int joined)
+        {
+            var current = points.Select(x => (double[])x.Clone()).ToArray();
+            var last = new LeastSquaresResult?[points.Count];
+            var follows = Enumerable.Range(0, points.Count).ToArray();
+            var running = Enumerable.Range(0, points.Count).ToList();
+            var widthHz = StartWidthHz(Problem);
+            for (var k = 0; k < _stages.Count; k++)
+            {
+                if (Options.Cancel.IsCancellationRequested && last[0] is not null) break;
+                var stage = _stages[k];
+                Parallel.ForEach(running, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
+                {
+                    last[s] = RunStage(Problem, Layout, _stageData[k], Engine, stage, current[s], Lower, Upper, Options, s, k, _stages.Count);
+                    current[s] = last[s]!.Parameters;
+                });
+                if (stage.BroadeningHz <= 0 || !Options.JoinStarts) continue;
+                var toleranceHz = JoinFraction * (stage.BroadeningHz + widthHz);
+                var kept = new List<int>();
+                foreach (var s in running)
+                {
+                    var leader = kept.FirstOrDefault(t => SpinDistanceHz(Problem, Layout, current[s], current[t]) <= toleranceHz, -1);
+                    if (leader >= 0) follows[s] = leader; else kept.Add(s);
+                }
+                running = kept;
+            }
+            joined = points.Count - running.Count;
+            return Enumerable.Range(0, points.Count).Select(s =>
+            {
+                var leader = s;
+                while (follows[leader] != leader) leader = follows[leader];
+                return (Free: current[leader], Result: last[leader]!);
+            }).ToArray();
+        }
+
+        /// <summary>
+        /// A start point made ready for <see cref="RunStages"/>: shifts aligned on the data's centroids (with
+        /// continuation) and every value within its bounds.
+        /// </summary>
+        public double[] Aligned(double[] x)
+        {
+            var start = Options.Continuation ? AlignCentroids(Problem, Layout, x) : (double[])x.Clone();
+            for (var f = 0; f < start.Length; f++) start[f] = Math.Clamp(start[f], Lower[f], Upper[f]);
+            return start;
+        }
+
+        /// <summary>Refits from <paramref name="free"/> through the same stages as a normal start, and polishes: one call.</summary>
+        public SpectrumFitResult Refit(double[] free)
+        {
+            var outcome = RunStages([Aligned(free)], out _)[0];
+            return Finish(outcome.Free, outcome.Result, 1, 1, 0);
+        }
+
+        /// <summary>Sum of squared residuals of the model at <paramref name="free"/> over all fitted points.</summary>
+        public double Cost(double[] free)
+        {
+            var model = new SpectralModel(Problem.System, Layout, Prepared, Problem.Shape, Engine, 0);
+            var r = new double[model.ResidualCount];
+            model.Residuals(free, r);
+            return r.Sum(v => v * v);
+        }
+
+        /// <summary>
+        /// Polishes <paramref name="free"/> on all points and builds the result. The result is never worse than the
+        /// start as given: when the search ended above it, the start itself is polished (the minimiser accepts only
+        /// steps that lower the cost) and that is the result, with a plain statement that the start was the best point.
+        /// </summary>
+        public SpectrumFitResult Finish(double[] free, LeastSquaresResult result, int starts, int reached, int joined)
+        {
+            var stopped = Options.Cancel.IsCancellationRequested;
+            var full = new Stage(0, 1, false);
+            var polish = stopped ? result
+                : RunStage(Problem, Layout, Prepared, Engine, full, free, Lower, Upper, Options, -1, _stages.Count, _stages.Count + 1);
+            var startCost = Cost(GivenStart);
+            var points = Prepared.Sum(p => p.Count);
+            var searchCost = polish.ResidualSumOfSquares;
+            var startWasBest = false;
+            if (!(polish.ResidualSumOfSquares <= startCost))
+            {
+                // Stopped or not, the start is a point seen: a stopped fit still keeps the better of the two.
+                var fromStart = stopped ? null
+                    : RunStage(Problem, Layout, Prepared, Engine, full, GivenStart, Lower, Upper, Options, -1, _stages.Count, _stages.Count + 1);
+                if (fromStart is not null && fromStart.ResidualSumOfSquares <= polish.ResidualSumOfSquares)
+                    (polish, startWasBest, reached) = (fromStart, true, 1);
+            }
+            var finalModel = new SpectralModel(Problem.System, Layout, Prepared, Problem.Shape, Engine, 0);
+            var built = SpectrumFitResult.Build(Problem, Layout, finalModel, polish.Parameters, polish, starts, reached, stopped) with
+            {
+                StartsJoined = joined,
+                StartRms = Math.Sqrt(startCost / points),
+                Setup = FitSetupRecord.From(Problem, Layout, Options),
+            };
+            return startWasBest ? built.SayingStartWasBest(Math.Sqrt(searchCost / points)) : built;
+        }
+
+        /// <summary>
+        /// Nothing varies: the comparison of the simulation at the given values with the data (figure, rms, report), no
+        /// minimisation.
+        /// </summary>
+        public SpectrumFitResult Overlay()
+        {
+            var model = new SpectralModel(Problem.System, Layout, Prepared, Problem.Shape, Engine, 0);
+            var cost = Cost(GivenStart);
+            var n = Prepared.Sum(p => p.Count);
+            var result = new LeastSquaresResult
+            {
+                Parameters = [], StandardErrors = [], Covariance = new double[0, 0], Correlation = new double[0, 0],
+                ResidualSumOfSquares = cost, DegreesOfFreedom = n, ResidualVariance = cost / Math.Max(1, n), Rank = 0,
+                NullSpace = [], Undetermined = [], AtBound = [], Iterations = 0, ResidualEvaluations = 1, JacobianEvaluations = 0,
+                Converged = true, Reason = StopReason.GradientTolerance,
+                Message = "nothing was varied: the simulation at the given values compared with the data",
+            };
+            return SpectrumFitResult.Build(Problem, Layout, model, [], result, 0, 0, false) with
+            {
+                Overlay = true,
+                StartRms = Math.Sqrt(cost / n),
+                Setup = FitSetupRecord.From(Problem, Layout, Options),
+            };
+        }
     }
 
     /// <summary>
@@ -168,8 +288,8 @@ public static class SpectrumFitter
     /// </summary>
     internal const double JoinFraction = 0.01;
 
-    /// <summary>Largest difference in Hz (at the first trace's field) between two free vectors over the shifts and couplings.</summary>
-    private static double SpinDistanceHz(SpectrumFitProblem problem, ParameterLayout layout, double[] a, double[] b)
+    /// <summary>Largest (or with <paramref name="sum"/>, summed) difference in Hz at the first trace's field between two free vectors over the shifts and couplings.</summary>
+    private static double SpinDistanceHz(SpectrumFitProblem problem, ParameterLayout layout, double[] a, double[] b, bool sum = false)
     {
         var observed = problem.System.Observed;
         var largest = 0.0;
@@ -184,7 +304,7 @@ public static class SpectrumFitter
                 ParameterKind.JHz => Math.Abs(a[f] - b[f]),
                 _ => 0,
             };
-            largest = Math.Max(largest, hz);
+            largest = sum ? largest + hz : Math.Max(largest, hz);
         }
         return largest;
     }
