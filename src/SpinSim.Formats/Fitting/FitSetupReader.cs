@@ -30,6 +30,7 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 /// shift_window_ppm = 0.3              # shifts stay this close to their start unless bounded below
 /// hold_shifts_outside_regions = true  # false: vary shifts of nuclei with no line in the regions
 /// tie_symmetric = true                # false: do not tie the nuclei of [[symmetry]] tables
+/// linewidth_per_trace = true          # joint fits: one linewidth per trace (false: one for all)
 /// [fit.bounds]
 /// "shift:HA" = [7.2, 7.5]
 /// </code>
@@ -39,7 +40,7 @@ public static class FitSetupReader
 {
     private static readonly string[] Keys =
         ["regions_ppm", "exclude_ppm", "vary", "fix", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape",
-         "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric"];
+         "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric", "linewidth_per_trace"];
 
     public static FitSettings Read(FitSection? section, SpinSystem system, int traces, IReadOnlyList<MirrorSymmetry>? symmetries = null)
     {
@@ -90,6 +91,7 @@ public static class FitSetupReader
                 case "linewidth_per_nucleus": setup = setup with { PerNucleusWidth = Bool(path, e) }; break;
                 case "hold_shifts_outside_regions": setup = setup with { HoldShiftsOutsideRegions = Bool(path, e) }; break;
                 case "tie_symmetric": setup = setup with { TieSymmetric = Bool(path, e) }; break;
+                case "linewidth_per_trace": setup = setup with { WidthPerTrace = Bool(path, e) }; break;
                 case "shift_window_ppm":
                     var window = Number(path, e);
                     if (!(window > 0))

@@ -103,6 +103,48 @@ public class FitCliTests
     }
 
     [Fact]
+    public void TheDataFieldWinsWithANoticeAndIsWrittenToTheBestFitSystem()
+    {
+        // Data simulated at 60 MHz (invented ABX), start file at 100 MHz.
+        var data = Temp(".jdx");
+        Assert.Equal(0, CliTests.Run("simulate", CliTests.Example("abx-stereocentre.toml"), "--field", "60", "--spectrum", data, "--points", "8192", "--noise", "0.004", "--seed", "3").Code);
+        var system = Temp(".toml");
+        var (code, o, err) = CliTests.Run("fit", CliTests.Example("abx-stereocentre.toml"), "--data", data, "--starts", "1", "-q", "--write-system", system);
+        Assert.True(code == 0, err + o);
+        Assert.Contains("was measured at 60 MHz and abx-stereocentre.toml says 100 MHz: the fit uses the data's field", err);
+        Assert.Equal(60, SpinSystemFiles.Read(system).System.Field.Value, 6);
+        File.Delete(data);
+        File.Delete(system);
+    }
+
+    [Fact]
+    public void AStartOutsideItsBoundsIsRefusedAtTheBoundsLine()
+    {
+        var (data, start) = SyntheticAbx();
+        File.AppendAllText(start, "\n[fit.bounds]\n\"j:HB-HX\" = [8, 10]\n");
+        var (code, _, err) = CliTests.Run("fit", start, "--data", data, "-q");
+        Assert.Equal(1, code);
+        Assert.Matches(@":\d+: the start of j:HB-HX, 7, lies outside its bounds \[8, 10\]", err);
+        File.Delete(data);
+        File.Delete(start);
+    }
+
+    [Fact]
+    public void ASetupThatVariesNothingGivesTheOverlayWithItsRms()
+    {
+        var (data, start) = SyntheticAbx();
+        File.AppendAllText(start, "\n[fit]\nvary = []\n");
+        var report = Temp(".json");
+        var (code, o, err) = CliTests.Run("fit", start, "--data", data, "-q", "--report", report);
+        Assert.True(code == 0, err + o);
+        Assert.Contains("nothing varied: the simulation at the given values compared with the data", o);
+        using var json = JsonDocument.Parse(File.ReadAllText(report));
+        Assert.True(json.RootElement.GetProperty("overlay").GetBoolean());
+        Assert.True(json.RootElement.GetProperty("rms").GetDouble() > 0);
+        foreach (var f in new[] { data, start, report }) File.Delete(f);
+    }
+
+    [Fact]
     public void MissingDataIsAUsageError() => Assert.Equal(2, CliTests.Run("fit", CliTests.Example("vinyl.toml")).Code);
 
     [Fact]
@@ -151,10 +193,25 @@ public class FitCliTests
             phase = true
             starts = 2
             """);
-        var report = Temp(".json");
-        var (code, _, err) = CliTests.Run("fit", start, "--data", ReferenceData.PathOf("jcamp", "rutin-1h-400mhz-link.jdx"), "-q", "--report", report);
+        var (report, html) = (Temp(".json"), Temp(".html"));
+        var (code, _, err) = CliTests.Run("fit", start, "--data", ReferenceData.PathOf("jcamp", "rutin-1h-400mhz-link.jdx"), "-q", "--report", report, "--html", html);
         Assert.True(code == 0, err);
         using var json = JsonDocument.Parse(File.ReadAllText(report));
+        // The report holds the setup needed to rerun the fit: the regions as given, the field from the data, the command.
+        Assert.Equal(2, json.RootElement.GetProperty("schema_version").GetInt32());
+        var setup = json.RootElement.GetProperty("setup");
+        var trace = setup.GetProperty("traces")[0];
+        Assert.False(trace.GetProperty("regions_automatic").GetBoolean());
+        Assert.Equal([[7.60, 7.38], [6.90, 6.70]], trace.GetProperty("regions_ppm").EnumerateArray()
+            .Select(r => r.EnumerateArray().Select(v => v.GetDouble()).ToArray()).ToArray());
+        Assert.Equal(399.782198, trace.GetProperty("field_mhz").GetDouble(), 3);
+        Assert.Equal(2, setup.GetProperty("starts").GetInt32());
+        Assert.StartsWith("spinsim fit ", setup.GetProperty("command_line").GetString());
+        Assert.Contains(setup.GetProperty("parameters").EnumerateArray(), p => p.GetProperty("name").GetString() == "phase_deg" && p.GetProperty("varied").GetBoolean());
+        var page = File.ReadAllText(html);
+        Assert.Contains("Setup (enough to run the fit again)", page);
+        Assert.Contains("regions (given)", page);
+        File.Delete(html);
         Assert.True(json.RootElement.GetProperty("converged").GetBoolean());
         Assert.True(json.RootElement.GetProperty("r_factor").GetDouble() < 0.1);
         double Value(string name) => json.RootElement.GetProperty("parameters").EnumerateArray()

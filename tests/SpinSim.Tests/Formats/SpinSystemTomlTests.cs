@@ -32,6 +32,26 @@ public class SpinSystemTomlTests
     }
 
     [Fact]
+    public void ASymmetryIsDeclaredAsPairsAndWrittenBack()
+    {
+        var path = Path.Combine(ReferenceData.RepositoryRoot, "spin-systems", "para-ring-aabb.toml");
+        var doc = SpinSystemToml.Read(path);
+        var symmetry = Assert.Single(doc.Symmetries);
+        Assert.Equal([("HA", "HA'"), ("HB", "HB'")], symmetry.Pairs);
+        var again = SpinSystemToml.Parse(SpinSystemToml.Write(doc.System, doc.DefaultWidth, null, doc.Symmetries), "again.toml");
+        Assert.Equal(symmetry.Pairs, Assert.Single(again.Symmetries).Pairs);
+    }
+
+    [Fact]
+    public void ASymmetryThatDoesNotFitIsRefusedAtItsLine()
+    {
+        var text = Valid + "\n[[symmetry]]\nswap = [[\"A\", \"Me\"]]\n";
+        var e = Assert.Throws<SpinSystemFileException>(() => SpinSystemToml.Parse(text, "x.toml"));
+        Assert.StartsWith("x.toml:14:", e.Message);
+        Assert.Contains("differ in count or isotope", e.Message);
+    }
+
+    [Fact]
     public void FieldInTeslaUsesCodataProtonRatio()
     {
         // CODATA 2018: gamma_p / 2 pi = 42.577 478 518 MHz/T (value from memory of the CODATA table).

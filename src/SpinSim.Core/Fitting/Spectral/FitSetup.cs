@@ -44,6 +44,9 @@ public sealed record FitSetup
 
     public bool TieSymmetric { get; init; } = true;
 
+    /// <summary>In a joint fit, one common linewidth per trace (default) rather than one for all traces.</summary>
+    public bool WidthPerTrace { get; init; } = true;
+
     /// <summary>Margin added around the lines for the default regions: 10 widths plus this many Hz (room for shifts to move).</summary>
     public const double RegionMarginHz = 25;
 
@@ -151,8 +154,12 @@ public sealed record FitSetup
             foreach (var e in observed)
                 list.Add(Make($"linewidth:{system.Nuclei[e].Id}", ParameterKind.LinewidthHz, [system.Nuclei[e].Id], -1, e,
                     system.Nuclei[e].Width?.Value ?? startWidthHz, 0.01, 100));
-        else
+        else if (traces == 1 || !WidthPerTrace)
             list.Add(Make("linewidth", ParameterKind.LinewidthHz, [], -1, -1, startWidthHz, 0.01, 100));
+        else
+            // Traces at different fields, or from different instruments, rarely share a width: one each by default.
+            for (var d = 0; d < traces; d++)
+                list.Add(Make("linewidth" + (d == 0 ? "" : $"@{d + 1}"), ParameterKind.LinewidthHz, [], d, -1, startWidthHz, 0.01, 100));
         for (var d = 0; d < traces; d++)
         {
             var at = d == 0 ? "" : $"@{d + 1}";
