@@ -124,7 +124,7 @@ public class FitCliTests
         File.AppendAllText(start, "\n[fit.bounds]\n\"j:HB-HX\" = [8, 10]\n");
         var (code, _, err) = CliTests.Run("fit", start, "--data", data, "-q");
         Assert.Equal(1, code);
-        Assert.Matches(@":\d+: the start of j:HB-HX, 7, lies outside its bounds \[8, 10\]", err);
+        Assert.Matches(@", line \d+: the start of j:HB-HX, 7, lies outside its bounds \[8, 10\]", err);
         File.Delete(data);
         File.Delete(start);
     }

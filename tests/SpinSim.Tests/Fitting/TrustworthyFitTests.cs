@@ -142,7 +142,7 @@ public class TrustworthyFitTests
     [Fact]
     public void AStartOutsideItsBoundsIsRefusedWithTheFix()
     {
-        var e = Assert.Throws<ArgumentException>(() => new FitSetup { Bounds = new Dictionary<string, (double, double)> { ["j:HA-HX"] = (5, 9) } }
+        var e = Assert.Throws<SpinSim.Core.Errors.InputException>(() => new FitSetup { Bounds = new Dictionary<string, (double, double)> { ["j:HA-HX"] = (5, 9) } }
             .BuildParameters(Abx(), 1, 0.7));
         Assert.Contains("the start of j:HA-HX, 4.7, lies outside its bounds [5, 9]", e.Message);
     }

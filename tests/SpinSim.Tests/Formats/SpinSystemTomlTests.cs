@@ -47,7 +47,7 @@ public class SpinSystemTomlTests
     {
         var text = Valid + "\n[[symmetry]]\nswap = [[\"A\", \"Me\"]]\n";
         var e = Assert.Throws<SpinSystemFileException>(() => SpinSystemToml.Parse(text, "x.toml"));
-        Assert.StartsWith("x.toml:14:", e.Message);
+        Assert.StartsWith("x.toml, line 14:", e.Message);
         Assert.Contains("differ in count or isotope", e.Message);
     }
 
