@@ -216,12 +216,7 @@ public static class FitCommand
         ("block bootstrap", r.Bootstrap is { } b ? $"{b.Converged} of {b.Replicates} refits, blocks of {b.BlockPoints} points (errors in brackets)" : "not run"),
     ];
 
-    private static string Format(double v, ParameterKind kind) => kind switch
-    {
-        ParameterKind.ShiftPpm => v.ToString("0.000000", CultureInfo.InvariantCulture),
-        ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz or ParameterKind.PhaseDeg => v.ToString("0.0000", CultureInfo.InvariantCulture),
-        _ => v.ToString("G5", CultureInfo.InvariantCulture),
-    };
+    private static string Format(double v, ParameterKind kind) => v.ToString(ParameterKindInfo.Of(kind).ValueFormat, CultureInfo.InvariantCulture);
 
     private static void PrintReport(TextWriter o, SpectrumFitResult r, string systemPath, IReadOnlyList<string> data)
     {

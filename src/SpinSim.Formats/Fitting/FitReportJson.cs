@@ -115,15 +115,5 @@ public static class FitReportJson
 
     private static JsonArray Strings(IEnumerable<string> items) => new(items.Select(i => (JsonNode)JsonValue.Create(i)!).ToArray());
 
-    public static string Kind(ParameterKind kind) => kind switch
-    {
-        ParameterKind.ShiftPpm => "shift_ppm",
-        ParameterKind.JHz => "j_hz",
-        ParameterKind.LinewidthHz => "linewidth_hz",
-        ParameterKind.Scale => "scale",
-        ParameterKind.Baseline => "baseline",
-        ParameterKind.OffsetHz => "offset_hz",
-        ParameterKind.PhaseDeg => "phase_deg",
-        _ => kind.ToString(),
-    };
+    public static string Kind(ParameterKind kind) => ParameterKindInfo.Of(kind).Key;
 }

@@ -157,4 +157,22 @@ public class TrustworthyFitTests
         var wide = new FitSetup { ShiftWindowPpm = 1 }.BuildParameters(Abx(), 1, 0.7).Single(p => p.Name == "shift:HA");
         Assert.Equal(3.74, wide.Upper, 12);
     }
+
+    [Fact]
+    public void TheFirstTracesOffsetIsTheShiftReferenceAndFurtherTracesOffsetsAreFittedAgainstIt()
+    {
+        // Invented ABX at 60 and 400 MHz; the 400 MHz trace is misreferenced by +2 Hz.
+        var truth = Abx();
+        var benchtop = Synthetic(truth.WithField(new FieldMHz(60)), 0.9, 16384, 0.004, 79);
+        var high = Synthetic(truth.WithField(new FieldMHz(400)), 0.6, 16384, 0.004, 80);
+        var misreferenced = new SpinSim.Core.Traces.SpectrumTrace(high.ShiftPpm.Select(p => p + 2.0 / 400).ToArray(), high.Intensity.ToArray(), 400, "1H", high.Origin);
+        var problem = new FitSetup { FitOffset = true }.Problem(truth, [benchtop, misreferenced], 0.8, Lineshape.Lorentzian);
+        Assert.Contains(problem.Notes, n => n.StartsWith("offset_hz of the first trace is held at 0 Hz", StringComparison.Ordinal));
+        var result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: 1));
+        Assert.True(result.Converged, result.StopReason);
+        Assert.False(result.Parameters.Single(p => p.Name == "offset_hz").Varied);
+        var offset = result.Parameters.Single(p => p.Name == "offset_hz@2");
+        Assert.True(Math.Abs(offset.Value - 2.0) <= 3 * offset.StdError + 0.01, $"offset@2 {offset.Value} ± {offset.StdError}");
+        Assert.DoesNotContain(result.Warnings, w => w.Contains("does not change along"));
+    }
 }

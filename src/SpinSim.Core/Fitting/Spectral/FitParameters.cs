@@ -3,8 +3,43 @@ using SpinSim.Core.Model;
 
 namespace SpinSim.Core.Fitting.Spectral;
 
-/// <summary>What a fit parameter stands for. Units are in the names.</summary>
+/// <summary>What a fit parameter stands for. Units are in the names; everything else about a kind is in its <see cref="ParameterKindInfo"/>.</summary>
 public enum ParameterKind { ShiftPpm, JHz, LinewidthHz, Scale, Baseline, OffsetHz, PhaseDeg }
+
+/// <summary>
+/// Everything the fitter and the reports need to know about one kind of parameter, in one place: its name in reports,
+/// its unit and printed precision, whether it is a spin parameter (shift or coupling, moved by the random starts and
+/// compared in Hz), and its finite-difference step. A new kind adds one entry to <see cref="Of"/>.
+/// </summary>
+/// <param name="Key">The kind as the JSON report names it, e.g. <c>shift_ppm</c>.</param>
+/// <param name="ValueFormat">.NET format of a value in the printed table.</param>
+/// <param name="HzPerUnit">Hz per unit of the value at a given observe frequency (MHz) for the spin kinds; null for the others.</param>
+/// <param name="DifferenceStep">Absolute step for a central difference, from the value and the observe frequency (MHz).</param>
+public sealed record ParameterKindInfo(
+    ParameterKind Kind,
+    string Key,
+    string Unit,
+    string ValueFormat,
+    Func<double, double>? HzPerUnit,
+    Func<double, double, double> DifferenceStep)
+{
+    /// <summary>Shifts and couplings: what the spin Hamiltonian is made of.</summary>
+    public bool IsSpin => HzPerUnit is not null;
+
+    private static readonly ParameterKindInfo[] All =
+    [
+        new(ParameterKind.ShiftPpm, "shift_ppm", "ppm", "0.000000", mhz => mhz, (_, mhz) => 1e-4 / mhz),
+        new(ParameterKind.JHz, "j_hz", "Hz", "0.0000", _ => 1, (_, _) => 1e-4),
+        new(ParameterKind.LinewidthHz, "linewidth_hz", "Hz", "0.0000", null, (_, _) => 1e-4),
+        new(ParameterKind.Scale, "scale", "", "G5", null, (v, _) => 1e-6 * Math.Max(1, Math.Abs(v))),
+        new(ParameterKind.Baseline, "baseline", "", "G5", null, (v, _) => 1e-6 * Math.Max(1, Math.Abs(v))),
+        new(ParameterKind.OffsetHz, "offset_hz", "Hz", "0.0000", null, (_, _) => 1e-4),
+        new(ParameterKind.PhaseDeg, "phase_deg", "deg", "0.0000", null, (_, _) => 1e-3),
+    ];
+
+    /// <summary>The description of <paramref name="kind"/>.</summary>
+    public static ParameterKindInfo Of(ParameterKind kind) => All[(int)kind];
+}
 
 /// <summary>
 /// One named parameter of a spectrum fit. Names: <c>shift:ID</c>, <c>j:A-B</c>, <c>linewidth</c> or
@@ -25,22 +60,13 @@ public sealed record FitParameter(
     double Upper,
     bool Vary)
 {
-    public string Unit => UnitOf(Kind);
+    public string Unit => ParameterKindInfo.Of(Kind).Unit;
 
     /// <summary>True when the bounds come from the user's setup rather than the defaults.</summary>
     public bool BoundsGiven { get; init; }
 
     /// <summary>Why a parameter the setup would vary is held instead (null when it is not).</summary>
     public string? HeldBecause { get; init; }
-
-    /// <summary>The unit a parameter kind is stated in ("" for the dimensionless scale and baseline).</summary>
-    public static string UnitOf(ParameterKind kind) => kind switch
-    {
-        ParameterKind.ShiftPpm => "ppm",
-        ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz => "Hz",
-        ParameterKind.PhaseDeg => "deg",
-        _ => "",
-    };
 }
 
 /// <summary>

@@ -71,6 +71,18 @@ public sealed record FitSetup
                 notes.Add($"no line of {id} falls in a fitted region, so its shift is held at {parameters[i].Start:0.####} ppm " +
                           "(its couplings stay free); add it to the regions, or set hold_shifts_outside_regions = false to vary it anyway");
             }
+        // A frequency offset of the first trace moves every line as moving every shift together does, so with shifts
+        // free it is held at 0: that trace is the reference, and the offsets of further traces are fitted relative to it
+        // (at another field a common shift in ppm and an offset in Hz move the lines differently, so those are determined).
+        var firstOffset = parameters.FindIndex(p => p.Kind == ParameterKind.OffsetHz && p.Dataset == 0);
+        if (firstOffset >= 0 && parameters[firstOffset].Vary && parameters.Any(p => p.Kind == ParameterKind.ShiftPpm && p.Vary))
+        {
+            parameters[firstOffset] = parameters[firstOffset] with { Vary = false, HeldBecause = "the first trace is the shift reference" };
+            notes.Add("offset_hz of the first trace is held at 0 Hz: shifting every line by an offset looks exactly like moving every shift " +
+                      "together, so the spectrum cannot tell them apart; the shifts take up any referencing error of that trace" +
+                      (traces.Count > 1 ? ", and the offsets of the other traces are fitted relative to it" : "") +
+                      " (fix the shifts, e.g. fix = [\"shift:*\"], to fit the offset instead)");
+        }
         var ties = Ties.ToList();
         if (TieSymmetric)
             foreach (var symmetry in Symmetries) ties.AddRange(SymmetryTies(symmetry, parameters));

@@ -69,7 +69,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
         _broadeningHz = broadeningHz;
         _cache = data.Select(_ => new System.Collections.Concurrent.ConcurrentDictionary<string, LineList>()).ToArray();
         _spinParameters = Enumerable.Range(0, layout.Parameters.Count)
-            .Where(i => layout.Parameters[i].Kind is ParameterKind.ShiftPpm or ParameterKind.JHz).ToArray();
+            .Where(i => ParameterKindInfo.Of(layout.Parameters[i].Kind).IsSpin).ToArray();
         // Intensity of one uncoupled nucleus, 2^(N-1): the unit of line areas and of the negligible-line threshold.
         _singleNucleus = Math.Pow(2, system.Nuclei.Sum(n => n.Count) - 1);
         _offsets = new int[data.Count + 1];

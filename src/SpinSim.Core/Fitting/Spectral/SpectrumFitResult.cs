@@ -8,7 +8,7 @@ namespace SpinSim.Core.Fitting.Spectral;
 public sealed record FittedParameter(string Name, ParameterKind Kind, IReadOnlyList<string> Nuclei, int Dataset, double Value, double StdError,
     bool Varied, bool AtBound, string? TiedWith)
 {
-    public string Unit => FitParameter.UnitOf(Kind);
+    public string Unit => ParameterKindInfo.Of(Kind).Unit;
 }
 
 /// <summary>A measured trace over the fitted points with the model and the residual, in the trace's own units.</summary>
@@ -47,7 +47,7 @@ public sealed record SpectrumFitResult
     {
         var warnings = Warnings.ToList();
         var understated = Parameters.Select((p, i) => (p, b: bootstrap.StdErrors[i]))
-            .Where(t => t.p.Varied && t.p.Kind is ParameterKind.ShiftPpm or ParameterKind.JHz && t.b > factor * t.p.StdError)
+            .Where(t => t.p.Varied && ParameterKindInfo.Of(t.p.Kind).IsSpin && t.b > factor * t.p.StdError)
             .Select(t => $"{t.p.Name} ({t.b / t.p.StdError:0.#} x)").ToList();
         if (understated.Count > 0)
             warnings.Add($"the block bootstrap scatters more than the covariance standard errors say for {string.Join(", ", understated)}: " +

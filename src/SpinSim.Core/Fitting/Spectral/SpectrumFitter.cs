@@ -296,14 +296,11 @@ public static class SpectrumFitter
         for (var f = 0; f < layout.FreeCount; f++)
         {
             var p = layout.Parameters[layout.FreeRepresentatives[f]];
-            var hz = p.Kind switch
-            {
-                // A shift in ppm is Hz at its own isotope's frequency: the observe frequency scaled by the ratio.
-                ParameterKind.ShiftPpm => Math.Abs(a[f] - b[f]) * problem.Data[0].ObserveMHz
-                    * problem.System.Nuclei[p.Index].Isotope.FrequencyRatioPercent / observed.FrequencyRatioPercent,
-                ParameterKind.JHz => Math.Abs(a[f] - b[f]),
-                _ => 0,
-            };
+            // A shift in ppm is Hz at its own isotope's frequency: the observe frequency scaled by the ratio.
+            var info = ParameterKindInfo.Of(p.Kind);
+            var hz = !info.IsSpin ? 0 : Math.Abs(a[f] - b[f]) * info.HzPerUnit!(p.Kind == ParameterKind.ShiftPpm
+                ? problem.Data[0].ObserveMHz * problem.System.Nuclei[p.Index].Isotope.FrequencyRatioPercent / observed.FrequencyRatioPercent
+                : problem.Data[0].ObserveMHz);
             largest = sum ? largest + hz : Math.Max(largest, hz);
         }
         return largest;
@@ -437,19 +434,10 @@ public static class SpectrumFitter
         return starts;
     }
 
-    /// <summary>Absolute difference steps: 1e-4 Hz for shifts, couplings, widths and offsets; relative for the rest.</summary>
+    /// <summary>Absolute difference steps per free value, as each kind states them (<see cref="ParameterKindInfo.DifferenceStep"/>).</summary>
     private static double[] Steps(ParameterLayout layout, double[] x, PreparedData[] data) =>
-        Enumerable.Range(0, layout.FreeCount).Select(f =>
-        {
-            var p = layout.Parameters[layout.FreeRepresentatives[f]];
-            return p.Kind switch
-            {
-                ParameterKind.ShiftPpm => 1e-4 / data[0].ObserveMHz,
-                ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz => 1e-4,
-                ParameterKind.PhaseDeg => 1e-3,
-                _ => 1e-6 * Math.Max(1, Math.Abs(x[f])),
-            };
-        }).ToArray();
+        Enumerable.Range(0, layout.FreeCount)
+            .Select(f => ParameterKindInfo.Of(layout.Parameters[layout.FreeRepresentatives[f]].Kind).DifferenceStep(x[f], data[0].ObserveMHz)).ToArray();
 
     /// <summary>Reports synchronously on the calling thread (Progress&lt;T&gt; would post to a context).</summary>
     private sealed class InlineProgress<T>(Action<T> report) : IProgress<T>
