@@ -35,8 +35,7 @@ public class FitBenchmarks
         var setup = Case == "aabb"
             ? new FitSetup { Ties = [["shift:HA", "shift:HA'"], ["shift:HB", "shift:HB'"], ["j:HA-HB", "j:HA'-HB'"], ["j:HA-HB'", "j:HA'-HB"]] }
             : new FitSetup();
-        var dataset = new FitDataset(trace, [new PpmRange(trace.ShiftPpm.Max(), trace.ShiftPpm.Min())], []);
-        _problem = new SpectrumFitProblem(start, [dataset], setup.BuildParameters(start, 1, 0.8), setup.Ties, Lineshape.Lorentzian);
+        _problem = (setup with { Regions = [new PpmRange(trace.ShiftPpm.Max(), trace.ShiftPpm.Min())] }).Problem(start, [trace], 0.8, Lineshape.Lorentzian);
     }
 
     [Benchmark]
