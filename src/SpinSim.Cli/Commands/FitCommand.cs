@@ -181,14 +181,15 @@ public static class FitCommand
         result.Parameters.Select((p, i) => (p, i))
             .Where(t => t.p.TiedWith is null || !result.Parameters.Take(t.i).Any(q => t.p.TiedWith.Split(", ").Contains(q.Name)))
             .Select(t => new ParameterRow(t.p.TiedWith is null ? t.p.Name : $"{t.p.Name} (= {t.p.TiedWith})", Format(t.p.Value, t.p.Kind),
-                StdErrorText(t.p, result.Bootstrap?.StdErrors[t.i]), t.p.Unit)).ToList();
+                StdErrorText(t.p, result.Bootstrap?.StdErrors[t.i], result.Setup?.Parameters[t.i].HeldBecause is not null), t.p.Unit)).ToList();
 
     private static string ErrorHeading(SpectrumFitResult result) => result.Bootstrap is null ? "std. error" : "std. error (bootstrap)";
 
     /// <summary>The covariance error, and the bootstrap error in brackets when there is one.</summary>
-    private static string StdErrorText(FittedParameter p, double? bootstrap)
+    private static string StdErrorText(FittedParameter p, double? bootstrap, bool heldByTheFit)
     {
-        if (!p.Varied) return "fixed";
+        // "held": the fit chose not to vary it (the warnings say why); "fixed": the setup did.
+        if (!p.Varied) return heldByTheFit ? "held" : "fixed";
         var text = double.IsFinite(p.StdError) ? p.StdError.ToString("G2", CultureInfo.InvariantCulture) : "undetermined";
         if (bootstrap is { } b && double.IsFinite(b)) text += $" ({b.ToString("G2", CultureInfo.InvariantCulture)})";
         return text;
