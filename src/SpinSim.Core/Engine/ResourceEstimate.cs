@@ -49,9 +49,10 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
     /// </summary>
     private readonly record struct Work(double Cubes, double Squares, double Blocks, double Subspectra)
     {
-        // Rough per-item costs on the development machine (DEVELOPERS.md: a split 40-proton molecule, some 10^4 small
-        // blocks, takes about 10 ms; a fully coupled 14-spin cluster spends some seconds outside its eigen-solves).
-        private const double SecondsPerTransition = 1e-7, SecondsPerBlock = 5e-6, SecondsPerSubspectrum = 2e-5;
+        // Rough per-item costs, on the safe side, on the development machine: a split 40-proton molecule with a set of
+        // 64 among its single nuclei (some 10^4 small blocks, 6 x 10^4 lines, most of them pooled) took about 0.2 s,
+        // measured under heavy load and scaled; a fully coupled 14-spin cluster spends some seconds outside its eigen-solves.
+        private const double SecondsPerTransition = 4e-7, SecondsPerBlock = 2e-5, SecondsPerSubspectrum = 1e-4;
 
         public double Seconds(double secondsPerCube) =>
             2 * Cubes * secondsPerCube + Squares * SecondsPerTransition + Blocks * SecondsPerBlock + Subspectra * SecondsPerSubspectrum;
