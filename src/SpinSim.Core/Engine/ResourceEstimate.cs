@@ -36,28 +36,51 @@ public sealed record ResourceEstimate(int LargestBlock, long StateCount, double 
         var concurrent = Math.Min(Environment.ProcessorCount, blockSizes.Count);
         var bytes = 8 * (squares + 4.0 * concurrent * largest * largest);
         var states = twiceF.Aggregate(1.0, (acc, f) => acc * (f + 1));
-        var cubes = CubesOverCombinations(twiceF, isotopes);
+        var work = WorkOverCombinations(twiceF, isotopes);
         return new ResourceEstimate(largest, (long)Math.Min(states, long.MaxValue), bytes,
-            2 * cubes * NativeSecondsPerCube, 2 * cubes * ManagedSecondsPerCube);
+            work.Seconds(NativeSecondsPerCube), work.Seconds(ManagedSecondsPerCube));
     }
 
     /// <summary>
-    /// Sum of n^3 over the blocks of every combination of total spins (a set of k equivalent nuclei takes 2F = k, k - 2,
-    /// ...), exact up to <see cref="SummedCombinations"/> combinations and bounded above by combinations x the largest
-    /// beyond, so that a system with very many combinations is refused without being enumerated.
+    /// The work of one cluster summed over its combinations of total spins: n^3 of the eigen-decompositions, n^2 of the
+    /// candidate transitions between neighbouring blocks, and a fixed cost per block and per subspectrum. The last three
+    /// dominate a cluster of many small blocks (a large equivalent set among single nuclei), which the n^3 term alone
+    /// would call free.
     /// </summary>
-    private static double CubesOverCombinations(int[] counts, Isotope[] isotopes)
+    private readonly record struct Work(double Cubes, double Squares, double Blocks, double Subspectra)
+    {
+        // Rough per-item costs, on the safe side, on the development machine: a split 40-proton molecule with a set of
+        // 64 among its single nuclei (some 10^4 small blocks, 6 x 10^4 lines, most of them pooled) took about 0.2 s,
+        // measured under heavy load and scaled; a fully coupled 14-spin cluster spends some seconds outside its eigen-solves.
+        private const double SecondsPerTransition = 4e-7, SecondsPerBlock = 2e-5, SecondsPerSubspectrum = 1e-4;
+
+        public double Seconds(double secondsPerCube) =>
+            2 * Cubes * secondsPerCube + Squares * SecondsPerTransition + Blocks * SecondsPerBlock + Subspectra * SecondsPerSubspectrum;
+
+        public static Work Of(List<int> sizes) =>
+            new(sizes.Sum(n => (double)n * n * n), sizes.Sum(n => (double)n * n), sizes.Count, 1);
+
+        public Work Times(double k) => new(Cubes * k, Squares * k, Blocks * k, Subspectra * k);
+
+        public static Work operator +(Work a, Work b) => new(a.Cubes + b.Cubes, a.Squares + b.Squares, a.Blocks + b.Blocks, a.Subspectra + b.Subspectra);
+    }
+
+    /// <summary>
+    /// <see cref="Work"/> over every combination of total spins (a set of k equivalent nuclei takes 2F = k, k - 2, ...),
+    /// exact up to <see cref="SummedCombinations"/> combinations and bounded above by combinations x the largest beyond,
+    /// so that a system with very many combinations is refused without being enumerated.
+    /// </summary>
+    private static Work WorkOverCombinations(int[] counts, Isotope[] isotopes)
     {
         var choices = counts.Select(c => c / 2 + 1).ToArray();
         var combinations = choices.Aggregate(1.0, (acc, c) => acc * c);
-        static double Cubes(List<int> sizes) => sizes.Sum(n => (double)n * n * n);
-        if (combinations > SummedCombinations) return combinations * Cubes(BlockSizes(counts, isotopes));
+        if (combinations > SummedCombinations) return Work.Of(BlockSizes(counts, isotopes)).Times(combinations);
         var choice = new int[counts.Length];
-        double total = 0;
+        var total = new Work();
         while (true)
         {
             var twiceF = counts.Select((c, k) => c - 2 * choice[k]).ToArray();
-            total += Cubes(BlockSizes(twiceF, isotopes));
+            total += Work.Of(BlockSizes(twiceF, isotopes));
             var i = counts.Length - 1;
             while (i >= 0 && ++choice[i] == choices[i]) choice[i--] = 0;
             if (i < 0) return total;

@@ -49,6 +49,7 @@ public static class FitSetupReader
         var path = section.Path;
         Lineshape? shape = null;
         var nameLines = new List<(string Name, int Line, bool Pattern)>();
+        int? tieLine = null;
         var bounds = new Dictionary<string, (double, double)>();
         foreach (var e in section.Entries)
         {
@@ -78,6 +79,7 @@ public static class FitSetupReader
                         throw new FitSetupException(path, e.Line, "tie must be a list of lists of parameter names", "Write tie = [[\"shift:HA\", \"shift:HA'\"]]");
                     var ties = groups.Select(g => (IReadOnlyList<string>)((object[])g).Cast<string>().ToArray()).ToArray();
                     setup = setup with { Ties = ties };
+                    tieLine = e.Line;
                     nameLines.AddRange(ties.SelectMany(t => t).Select(n => (n, e.Line, false)));
                     break;
                 case "baseline_order":
@@ -133,6 +135,11 @@ public static class FitSetupReader
                 throw new FitSetupException(path, line, $"\"{name}\" names no parameter of this system",
                     $"Parameters are: {string.Join(", ", names.Take(20))}{(names.Length > 20 ? ", ..." : "")}");
         }
+        var kindOf = parameters.ToDictionary(p => p.Name, p => p.Kind, StringComparer.Ordinal);
+        foreach (var tie in setup.Ties)
+            if (tie.Select(n => kindOf[n]).Distinct().Count() > 1)
+                throw new FitSetupException(path, tieLine, $"tie [{string.Join(", ", tie)}] mixes parameters of different kinds",
+                    "Tie shifts with shifts, couplings with couplings and widths with widths");
         return new FitSettings(setup, shape);
     }
 

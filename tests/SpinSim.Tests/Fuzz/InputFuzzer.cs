@@ -41,7 +41,7 @@ public sealed record FuzzOutcome(string? Refusal, string? Failure)
 public static class InputFuzzer
 {
     /// <summary>The engine's budgets for fuzzed systems: small, so that every accepted input is quick.</summary>
-    public static EngineOptions Budget { get; } = EngineOptions.Default with { TimeBudgetSeconds = 0.05, MemoryBudgetBytes = 64L << 20 };
+    public static EngineOptions Budget { get; } = EngineOptions.Default with { TimeBudgetSeconds = 0.1, MemoryBudgetBytes = 64L << 20 };
 
     /// <summary>Points of the small simulation run on every system that reads.</summary>
     public const int SimulationPoints = 1024;
