@@ -27,7 +27,8 @@ public static class SpinSimCli
         root.Subcommands.Add(DemoCommand.Build(io));
         OptionValues.UseReadableParsers(root);
 
-        var parse = root.Parse(args);
+        // No arguments: the help, as for --help (exit code 0).
+        var parse = root.Parse(args.Length == 0 ? ["--help"] : args);
         if (parse.Errors.Count > 0)
         {
             foreach (var error in parse.Errors) stderr.WriteLine($"error: {error.Message}");

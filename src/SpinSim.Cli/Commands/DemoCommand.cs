@@ -6,8 +6,8 @@ using System.Text.Json.Nodes;
 namespace SpinSim.Cli.Commands;
 
 /// <summary>
-/// <c>spinsim demo</c>: SpinSim's whole job on bundled data of our own (invented values): simulates every system in
-/// spin-systems/, makes two synthetic measured traces (AA'BB' and ABX, with noise and a small phase error) from invented
+/// <c>spinsim demo</c>: SpinSim's whole job on bundled data of our own (invented values): simulates every example system
+/// (the repository's spin-systems/, embedded in the program so that the demo runs from any folder), makes two synthetic measured traces (AA'BB' and ABX, with noise and a small phase error) from invented
 /// true values, fits them from the example files' values, plans fields for one system and draws a splitting diagram.
 /// Every step is an ordinary spinsim command, logged with its output in demo-log.txt; summary.json gathers the numbers.
 /// </summary>
@@ -19,9 +19,19 @@ public static class DemoCommand
     public static Command Build(CommandIo io)
     {
         var output = new Option<string>("--out") { Description = "Folder for the outputs (created if missing)", DefaultValueFactory = _ => "demo-output" };
-        var systems = new Option<string>("--systems") { Description = "Folder of example spin systems", DefaultValueFactory = _ => "spin-systems" };
+        var systems = new Option<string?>("--systems") { Description = "Folder of spin systems to use instead of the bundled examples (written to OUT/spin-systems)" };
         var command = new Command("demo", "Run SpinSim's whole job on the bundled examples (invented values) and write figures, reports and spectra") { output, systems };
-        command.SetAction(parse => Run(io, parse.GetValue(output)!, parse.GetValue(systems)!));
+        command.SetAction(parse =>
+        {
+            var outDir = parse.GetValue(output)!;
+            var systemsDir = parse.GetValue(systems);
+            if (systemsDir is null)
+            {
+                systemsDir = Path.Combine(outDir, "spin-systems");
+                WriteBundledSystems(systemsDir);
+            }
+            return Run(io, outDir, systemsDir);
+        });
         return command;
     }
 
@@ -126,6 +136,18 @@ public static class DemoCommand
             summary.ToJsonString(new JsonSerializerOptions { WriteIndented = true, Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping }));
         io.Out.WriteLine($"demo outputs written to {outDir}/ (summary.json, demo-log.txt, figures, reports, spectra)");
         return 0;
+    }
+
+    /// <summary>The example systems embedded from the repository's spin-systems/ folder, written into <paramref name="folder"/>.</summary>
+    private static void WriteBundledSystems(string folder)
+    {
+        Directory.CreateDirectory(folder);
+        foreach (var resource in typeof(DemoCommand).Assembly.GetManifestResourceNames().Where(n => n.StartsWith("Systems.", StringComparison.Ordinal)))
+        {
+            using var stream = typeof(DemoCommand).Assembly.GetManifestResourceStream(resource)!;
+            using var file = File.Create(Path.Combine(folder, resource["Systems.".Length..]));
+            stream.CopyTo(file);
+        }
     }
 
     private static void WriteResource(string name, string path)

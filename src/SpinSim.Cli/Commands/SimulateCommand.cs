@@ -88,8 +88,6 @@ public static class SimulateCommand
             foreach (var note in result.Notes) io.Detail($"engine: {note}");
             io.Detail($"blocks: {result.Blocks}, largest {result.LargestBlock} states; {elapsed.TotalMilliseconds:0} ms");
             io.Detail($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; missing (numerical zeros): {result.DroppedIntensity:G3}");
-            if (simulated.NeglectedTailFraction > 0)
-                io.Detail($"lines evaluated within +-{settings.CutoffFwhm} widths; the Lorentzian tails left out hold {simulated.NeglectedTailFraction:P2} of each line's area");
 
             if (figurePath is not null)
             {
@@ -109,7 +107,7 @@ public static class SimulateCommand
                 };
                 if (phase != 0)
                 {
-                    var mixed = PhaseError.Apply(trace.Intensity.ToArray(), SpectrumSimulator.RenderLines(system, result, settings.DefaultWidth), simulated.Grid, settings.Shape, phase);
+                    var mixed = TraceSynthesizer.Render(SpectrumSimulator.RenderLines(system, result, settings.DefaultWidth), simulated.Grid, settings.Shape, PhaseRotation.FromDegrees(phase));
                     trace = new SpectrumTrace(trace.ShiftPpm.ToArray(), mixed, trace.ObserveMHz, trace.Nucleus,
                         TraceOrigin.Describe(trace.Origin.Source + " with a synthetic phase error", "simulated", trace.Origin.Form));
                     comments.Add($"synthetic zero-order phase error of {phase:G4} degrees mixed in");

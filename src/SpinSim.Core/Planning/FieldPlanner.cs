@@ -246,8 +246,8 @@ public static class FieldPlanner
         {
             var points = (int)Math.Ceiling((to - from) / step) + 1;
             var grid = new SpectrumGrid(from / observeMHz, (from + (points - 1) * step) / observeMHz, points, observeMHz);
-            var e = TraceSynthesizer.Render(own.ToArray(), grid, settings.Shape, RegionFwhm);
-            var f = TraceSynthesizer.Render(first, grid, settings.Shape, RegionFwhm);
+            var e = TraceSynthesizer.Render(own.ToArray(), grid, settings.Shape);
+            var f = TraceSynthesizer.Render(first, grid, settings.Shape);
             for (var i = 0; i < points; i++)
             {
                 sumSquares += e[i] * e[i];

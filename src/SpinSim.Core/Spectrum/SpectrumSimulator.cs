@@ -18,14 +18,13 @@ public sealed record SimulationSettings(
     double? FromPpm = null,
     double? ToPpm = null,
     int Points = 65536,
-    double ReferenceOffsetPpm = 0,
-    double CutoffFwhm = TraceSynthesizer.DefaultCutoffFwhm);
+    double ReferenceOffsetPpm = 0);
 
 /// <summary>The integral of one nucleus entry, normalised so that all observed entries add up to their proton count.</summary>
 public sealed record Integral(string Id, double ShiftPpm, int Count, double Value);
 
-/// <summary>A simulated trace with the integrals of its nuclei and the part of Lorentzian tails left out by the cut-off.</summary>
-public sealed record SimulatedSpectrum(SpectrumTrace Trace, IReadOnlyList<Integral> Integrals, SpectrumGrid Grid, double NeglectedTailFraction);
+/// <summary>A simulated trace (every line whole, tails included) with the integrals of its nuclei.</summary>
+public sealed record SimulatedSpectrum(SpectrumTrace Trace, IReadOnlyList<Integral> Integrals, SpectrumGrid Grid);
 
 public static class SpectrumSimulator
 {
@@ -62,12 +61,11 @@ public static class SpectrumSimulator
         var visible = render.Where(l => l.Area / l.FwhmHz >= VisibleFraction * tallest).ToArray();
         var window = SpectrumGrid.WindowFor(visible, observeMHz, settings.ReferenceOffsetPpm);
         var grid = new SpectrumGrid(settings.FromPpm ?? window.FromPpm, settings.ToPpm ?? window.ToPpm, settings.Points, observeMHz, settings.ReferenceOffsetPpm);
-        var intensity = TraceSynthesizer.Render(render, grid, settings.Shape, settings.CutoffFwhm);
+        var intensity = TraceSynthesizer.Render(render, grid, settings.Shape);
         var axis = Enumerable.Range(0, grid.Points).Select(grid.PpmAt).ToArray();
         var trace = new SpectrumTrace(axis, intensity, observeMHz, system.Observed.Symbol,
             TraceOrigin.Describe(string.IsNullOrEmpty(system.Title) ? "simulated spectrum" : system.Title, "simulated", settings.Shape.ToString()));
-        var tail = settings.Shape.Kind == LineshapeKind.Gaussian ? 0 : TraceSynthesizer.LorentzianTailFraction(settings.CutoffFwhm);
-        return new SimulatedSpectrum(trace, Integrals(system, lines), grid, tail);
+        return new SimulatedSpectrum(trace, Integrals(system, lines), grid);
     }
 
     /// <summary>

@@ -1,99 +1,418 @@
+// Method: far fields as multipole expansions of the Cauchy kernel about grid nodes (L. Greengard and V. Rokhlin, J. Comput. Phys. 73, 325, 1987, here in one dimension), summed by FFT convolution.
+using System.Numerics;
+using MathNet.Numerics.IntegralTransforms;
+
 namespace SpinSim.Core.Spectrum;
 
 /// <summary>
-/// Draws lines onto a <see cref="SpectrumGrid"/> as a trace in area units per Hz, so that the trace integrated
-/// over Hz gives the summed line areas (less the cut-off tails below).
+/// Draws lines onto a <see cref="SpectrumGrid"/> as a trace in area units per Hz: at every grid point, the sum over all
+/// lines of area x profile, each profile whole (no cut-off), to within <see cref="Tolerance"/> of each line's peak.
+/// The cost is O(lines + points log points).
 /// </summary>
 /// <remarks>
-/// Each line is evaluated only within a window about its centre, so the cost grows with the lines times the
-/// points per window, not times the whole grid. Lorentzian and Voigt lines are cut at
-/// <c>cutoffFwhm</c> widths either side; the area a Lorentzian loses beyond +-K FWHM is
-/// 1 - (2/pi) atan(2K) (see <see cref="LorentzianTailFraction"/>: 0.16 % at the default K = 200). A Voigt line
-/// loses no more than that asymptotically, since its far tail is the Lorentzian of its narrower Lorentzian
-/// component. Gaussian lines are cut at the smaller of K and <see cref="GaussianCutoffFwhm"/> widths, beyond
-/// which less than 1e-31 of the area lies. All Voigt lines of one shape share one reduced profile, tabulated
-/// near the centre with a short series in the wings; it agrees with the Faddeeva function to 1e-13 of the
-/// peak at a few times the cost of a Lorentzian. Large jobs run in parallel over runs of lines, each into
-/// its own buffer; the result depends on the machine's core count (in the last bits), never on thread timing.
+/// <para>Work is in grid steps s, on an axis ascending in Hz. Each line's complex profile P = A + i D (see
+/// <see cref="LineProfile"/>) is (i / (pi s)) / (x - zeta) for a Lorentzian, zeta = u - i h (u the centre, h the
+/// half-width, both in steps), and a Gaussian average of that over the centre for a Voigt or Gaussian (the Voigt is a
+/// Lorentzian convolved with a Gaussian). Two ways of summing it are used:</para>
+/// <para>Smooth lines (many lines of one width, wide against a step): each line is deposited on the 12 grid nodes
+/// around it with Lagrange interpolation weights, and the deposits are convolved with the profile sampled at every
+/// distance of the grid, by FFT. The interpolation error of the profile is at most prod|u - n_k| max|P^(12)| / 12!,
+/// where |P^(12)| is at most 12! / (pi h^13) for a Lorentzian component and 1.09 sqrt(12!) sigma^-12 times the
+/// Gaussian's peak for a Gaussian component (Cramér's bound on Hermite functions); a width is drawn this way only
+/// when that is below the tolerance.</para>
+/// <para>All other lines: about its nearest node n, 1/(x - zeta) = sum_K (zeta - n)^K / (x - n)^(K+1), and the Gaussian
+/// average turns (zeta - n)^K into its moments m_K (m_(K+1) = w m_K + K sigma^2 m_(K-1), w = zeta - n, by Stein's
+/// identity). The moments of all lines are deposited at their nodes, one array per K, and convolved by FFT with
+/// 1/d^(K+1) for node distances |d| &gt; R; within R of its node each line is evaluated directly. R is five times the
+/// largest |w| + 2.5 sigma (rounded up to a multiple of 8, so that similar spectra share kernels), so that 14 terms leave
+/// less than 5^-14 of each line's far field.</para>
+/// <para>Lines more than a grid's width outside the grid are evaluated directly at every point. Large jobs run in
+/// parallel; the result depends on the machine's core count only in the last bits, never on thread timing.</para>
 /// </remarks>
 public static class TraceSynthesizer
 {
-    /// <summary>Default half-window, in FWHM of each line, for Lorentzian and Voigt lines.</summary>
-    public const double DefaultCutoffFwhm = 200;
+    /// <summary>Error bound aimed at, relative to each line's peak height (the tests hold the trace to 1e-9 of its tallest point).</summary>
+    public const double Tolerance = 1e-11;
 
-    /// <summary>Half-window, in FWHM, past which a Gaussian line is not evaluated: 11.8 sigma, where erfc leaves 2.5e-32 of the area.</summary>
-    public const double GaussianCutoffFwhm = 5;
+    // Lagrange deposit of smooth lines: nodes floor(u) - 5 .. floor(u) + 6; Prod|u - n_k| is at most PlusMinus at u = 1/2.
+    private const int LagrangeNodes = 12;
+    private static readonly double LagrangeProductBound = Math.Pow(0.5 * 1.5 * 2.5 * 3.5 * 4.5 * 5.5, 2);
+
+    // Multipole terms of the far field and the near radius per unit of |w| + 2 sigma.
+    private const int Terms = 14;
+    private const double RadiusPerReach = 5;
+    private const int MinimumRadius = 8;
+
+    /// <summary>A width drawn by the smooth route needs at least this many lines to pay for its FFT.</summary>
+    private const int SmoothGroupMinimum = 1024;
+
+    private const int SmoothGroupMost = 8;
 
     // Below this many profile evaluations a second thread costs more than it saves.
     private const long ParallelThresholdEvaluations = 400_000;
 
-    /// <inheritdoc cref="Render(ReadOnlySpan{RenderLine}, SpectrumGrid, Lineshape, double)"/>
-    /// <remarks>A Voigt gets equal Lorentzian and Gaussian components (<see cref="Lineshape.FromKind"/>).</remarks>
-    public static double[] Render(ReadOnlySpan<RenderLine> lines, SpectrumGrid grid, LineshapeKind shape, double cutoffFwhm = DefaultCutoffFwhm) =>
-        Render(lines, grid, Lineshape.FromKind(shape), cutoffFwhm);
+    private static readonly object CacheLock = new();
+    private static readonly List<(int N, int Radius, double[][] Transforms)> FarKernelCache = [];
 
-    /// <summary>The trace of <paramref name="lines"/> on <paramref name="grid"/>, one value per grid point, in area units per Hz.</summary>
-    /// <param name="cutoffFwhm">Half-window K, in FWHM of each line, beyond which a line is not evaluated; at least 1.</param>
-    /// <exception cref="ArgumentException">A line with a non-finite centre or area, or a width that is not positive and finite; or K below 1.</exception>
-    public static double[] Render(ReadOnlySpan<RenderLine> lines, SpectrumGrid grid, Lineshape shape, double cutoffFwhm = DefaultCutoffFwhm)
+    /// <inheritdoc cref="Render(ReadOnlySpan{RenderLine}, SpectrumGrid, Lineshape, PhaseRotation)"/>
+    /// <remarks>A Voigt gets equal Lorentzian and Gaussian components (<see cref="Lineshape.FromKind"/>).</remarks>
+    public static double[] Render(ReadOnlySpan<RenderLine> lines, SpectrumGrid grid, LineshapeKind shape) =>
+        Render(lines, grid, Lineshape.FromKind(shape), PhaseRotation.None);
+
+    /// <inheritdoc cref="Render(ReadOnlySpan{RenderLine}, SpectrumGrid, Lineshape, PhaseRotation)"/>
+    public static double[] Render(ReadOnlySpan<RenderLine> lines, SpectrumGrid grid, Lineshape shape) =>
+        Render(lines, grid, shape, PhaseRotation.None);
+
+    /// <summary>
+    /// The trace of <paramref name="lines"/> on <paramref name="grid"/>, one value per grid point, in area units per Hz:
+    /// the absorption, or with a <paramref name="phase"/> error A cos phi - D sin phi (synthetic data for demonstrations
+    /// and tests of fitting).
+    /// </summary>
+    /// <exception cref="ArgumentException">A line with a non-finite centre or area, or a width that is not positive and finite.</exception>
+    public static double[] Render(ReadOnlySpan<RenderLine> lines, SpectrumGrid grid, Lineshape shape, PhaseRotation phase)
     {
         ArgumentNullException.ThrowIfNull(grid);
         ArgumentNullException.ThrowIfNull(shape);
-        if (!(cutoffFwhm >= 1))
-            throw new ArgumentOutOfRangeException(nameof(cutoffFwhm), cutoffFwhm, "the cut-off must be at least 1 FWHM");
         Validate(lines);
+        var points = grid.Points;
+        // An axis ascending in Hz; a descending grid is drawn mirrored and turned round at the end.
+        var reversed = grid.StepHz < 0;
+        var step = Math.Abs(grid.StepHz);
+        var firstHz = reversed ? grid.HzAt(points - 1) : grid.HzAt(0);
+        var axis = new Axis(firstHz, step, points);
 
-        var axis = new Axis(grid);
-        var trace = new double[grid.Points];
-        var cumulativeWork = new long[lines.Length + 1];
-        for (int i = 0; i < lines.Length; i++)
+        var trace = new double[points];
+        var smooth = new List<(LineProfile Profile, List<int> Lines)>();
+        var multipole = new List<int>();
+        var direct = new List<int>();
+        Classify(lines, shape, phase, axis, smooth, multipole, direct);
+
+        // The grid span the FFT must cover without wrapping: every deposit node and every output point.
+        long lowest = 0, highest = points - 1;
+        var radius = 0;
+        var widest = 0.0;
+        foreach (var l in multipole)
         {
-            var (first, last) = axis.Window(lines[i], HalfWindowHz(lines[i], shape, cutoffFwhm));
-            cumulativeWork[i + 1] = cumulativeWork[i] + Math.Max(0, last - first + 1);
+            var node = Math.Round(axis.Position(lines[l].CentreHz));
+            lowest = Math.Min(lowest, (long)node);
+            highest = Math.Max(highest, (long)node);
+            widest = Math.Max(widest, lines[l].FwhmHz);
         }
-        long work = cumulativeWork[^1];
+        // The near radius grows with the width for every shape (the components scale with it).
+        if (multipole.Count > 0) radius = FarRadius(shape.Profile(widest), step);
+        foreach (var (_, group) in smooth)
+            foreach (var l in group)
+            {
+                var node = Math.Floor(axis.Position(lines[l].CentreHz));
+                lowest = Math.Min(lowest, (long)node - LagrangeNodes / 2 + 1);
+                highest = Math.Max(highest, (long)node + LagrangeNodes / 2);
+            }
 
-        int threads = (int)Math.Min(Environment.ProcessorCount, work / ParallelThresholdEvaluations);
-        if (threads <= 1)
-        {
-            foreach (var line in lines)
-                Draw(line, shape, cutoffFwhm, axis, trace);
-            return trace;
-        }
-
-        // Contiguous runs of lines with equal work, each into its own buffer, summed in order: the result
-        // depends on the number of threads only, never on their timing.
-        var bounds = new int[threads + 1];
-        for (int t = 1; t < threads; t++)
-        {
-            int at = Array.BinarySearch(cumulativeWork, work * t / threads);
-            bounds[t] = at >= 0 ? at : ~at;
-        }
-        bounds[threads] = lines.Length;
-
-        // A span cannot enter the lambda; the copy is small beside the trace work.
         var all = lines.ToArray();
-        var buffers = new double[threads][];
-        buffers[0] = trace;
-        Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads }, t =>
+        if (smooth.Count > 0 || multipole.Count > 0)
         {
-            var buffer = t == 0 ? trace : buffers[t] = new double[trace.Length];
-            for (int i = bounds[t]; i < bounds[t + 1]; i++)
-                Draw(all[i], shape, cutoffFwhm, axis, buffer);
-        });
-        for (int t = 1; t < threads; t++)
-        {
-            var buffer = buffers[t];
-            for (int i = 0; i < trace.Length; i++)
-                trace[i] += buffer[i];
+            // Distances up to N/2 either way are represented: N/2 must exceed every node-to-point distance.
+            var half = Math.Max(highest + 1, points - lowest);
+            var n = (int)BitOperations.RoundUpToPowerOf2((ulong)(2 * half));
+            var spectrum = new Complex[n];
+            var far = multipole.Count > 0 ? FarKernels(n, radius) : null;
+            var jobs = new List<Action<Complex[]>>();
+            foreach (var (profile, group) in smooth)
+                jobs.Add(sum => AddSmooth(all, group, profile, phase, axis, n, sum));
+            if (far is not null)
+            {
+                var deposits = FarDeposits(all, multipole, shape, phase, axis, n);
+                for (var p = 0; p < deposits.Length; p++)
+                {
+                    var pair = p;
+                    jobs.Add(sum => AddFarPair(deposits[pair], pair, far, sum));
+                }
+            }
+            // Each job into its own spectrum, summed in order.
+            var parts = new Complex[jobs.Count][];
+            Parallel.For(0, jobs.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, j =>
+            {
+                parts[j] = new Complex[n];
+                jobs[j](parts[j]);
+            });
+            foreach (var part in parts)
+                for (var k = 0; k < n; k++) spectrum[k] += part[k];
+            Fourier.Inverse(spectrum, FourierOptions.NoScaling);
+            for (var j = 0; j < points; j++) trace[j] = spectrum[j].Real / n;
         }
+
+        var near = new List<(int Line, int Radius)>(multipole.Count + direct.Count);
+        foreach (var l in multipole) near.Add((l, radius));
+        foreach (var l in direct) near.Add((l, -1));
+        AddNear(all, near, shape, phase, axis, trace);
+
+        if (reversed) Array.Reverse(trace);
         return trace;
     }
 
-    /// <summary>Fraction of a Lorentzian's area beyond +-K FWHM of its centre: 1 - (2/pi) atan(2K).</summary>
-    public static double LorentzianTailFraction(double cutoffFwhm) =>
-        // Written as (2/pi) atan(1/(2K)), equal for K > 0, to avoid cancellation at large K.
-        2 / Math.PI * Math.Atan(0.5 / cutoffFwhm);
+    /// <summary>
+    /// Smooth groups (one width, enough lines, interpolation error below the tolerance) go by Lagrange deposit; pure
+    /// Gaussian absorption and lines far outside the grid directly; everything else by multipoles.
+    /// </summary>
+    private static void Classify(ReadOnlySpan<RenderLine> lines, Lineshape shape, PhaseRotation phase, Axis axis,
+        List<(LineProfile, List<int>)> smooth, List<int> multipole, List<int> direct)
+    {
+        var counts = new Dictionary<double, int>();
+        foreach (var line in lines) counts[line.FwhmHz] = counts.GetValueOrDefault(line.FwhmHz) + 1;
+        var chosen = counts
+            .Where(g => g.Value >= SmoothGroupMinimum && SmoothEnough(shape.Profile(g.Key, tabulated: true), phase, axis.Step))
+            .OrderByDescending(g => g.Value).Take(SmoothGroupMost)
+            .ToDictionary(g => g.Key, g => (Profile: shape.Profile(g.Key, tabulated: true), Lines: new List<int>(g.Value)));
+        // A pure Gaussian's absorption is negligible a few widths out: it needs no far field.
+        var gaussianAbsorption = shape.Kind == LineshapeKind.Gaussian && phase.Sin == 0;
+        for (var l = 0; l < lines.Length; l++)
+        {
+            if (lines[l].Area == 0) continue;
+            var u = axis.Position(lines[l].CentreHz);
+            if (u < -axis.Points || u > 2.0 * axis.Points) direct.Add(l);
+            else if (chosen.TryGetValue(lines[l].FwhmHz, out var group)) group.Lines.Add(l);
+            else if (gaussianAbsorption) direct.Add(l);
+            else multipole.Add(l);
+        }
+        foreach (var group in chosen.Values) smooth.Add(group);
+    }
+
+    /// <summary>Whether the 12-node Lagrange interpolant of the profile, in steps, is within the tolerance of its peak.</summary>
+    private static bool SmoothEnough(LineProfile profile, PhaseRotation phase, double step)
+    {
+        var peak = profile.Absorption(0) * step;
+        double bound = double.PositiveInfinity;
+        var h = profile.LorentzianFwhmHz / 2 / step;
+        if (h > 0) bound = LagrangeProductBound / (Math.PI * Math.Pow(h, LagrangeNodes + 1));
+        var sigma = profile.SigmaHz / step;
+        // The dispersion of a Gaussian component is not covered by Cramér's bound: only absorption uses it.
+        if (sigma > 0 && phase.Sin == 0)
+            bound = Math.Min(bound, LagrangeProductBound * 1.09 / Math.Sqrt(Factorial(LagrangeNodes)) / Math.Pow(sigma, LagrangeNodes)
+                / (sigma * Math.Sqrt(2 * Math.PI)));
+        return bound <= Tolerance * peak;
+    }
+
+    private static double Factorial(int n) => n <= 1 ? 1 : n * Factorial(n - 1);
+
+    /// <summary>The near radius, in steps, that a line needs for its far field to be held by <see cref="Terms"/> multipoles.</summary>
+    private static int FarRadius(LineProfile profile, double step)
+    {
+        var h = profile.LorentzianFwhmHz / 2 / step;
+        var sigma = profile.SigmaHz / step;
+        var reach = Math.Sqrt(0.25 + h * h) + 2.5 * sigma;
+        return Math.Max(MinimumRadius, 8 * (int)Math.Ceiling(RadiusPerReach * reach / 8));
+    }
+
+    /// <summary>
+    /// The transforms of 1/d^(K+1) for |d| &gt; R (0 within), K = 0 .. Terms - 1, on the circular layout of length n: for
+    /// even K the kernel is odd and its transform i t_K, for odd K it is even and its transform t_K; t_K is returned.
+    /// The last set is kept: a run of similar spectra reuses it.
+    /// </summary>
+    private static double[][] FarKernels(int n, int radius)
+    {
+        lock (CacheLock)
+            foreach (var cached in FarKernelCache)
+                if (cached.N == n && cached.Radius == radius) return cached.Transforms;
+        var transforms = new double[Terms][];
+        Parallel.For(0, Terms / 2, pair =>
+        {
+            var k = 2 * pair;
+            var z = new Complex[n];
+            for (var d = radius + 1; d < n / 2; d++)
+            {
+                var odd = 1.0 / d;
+                for (var p = 0; p < k; p++) odd /= d;
+                var even = odd / d;
+                z[d] = new Complex(odd, even);
+                z[n - d] = new Complex(-odd, even);
+            }
+            Fourier.Forward(z, FourierOptions.NoScaling);
+            var a = new double[n];
+            var b = new double[n];
+            for (var i = 0; i < n; i++)
+            {
+                var mirror = z[(n - i) & (n - 1)];
+                // Z = i t_K + i t_(K+1) is imaginary, t_K odd in the frequency index and t_(K+1) even.
+                a[i] = 0.5 * (z[i].Imaginary - mirror.Imaginary);
+                b[i] = 0.5 * (z[i].Imaginary + mirror.Imaginary);
+            }
+            transforms[k] = a;
+            transforms[k + 1] = b;
+        });
+        lock (CacheLock)
+        {
+            if (FarKernelCache.Count >= 3) FarKernelCache.RemoveAt(0);
+            FarKernelCache.Add((n, radius, transforms));
+        }
+        return transforms;
+    }
+
+    /// <summary>
+    /// The moment deposits Re[c m_K] (c = e^(i phi) i / (pi s), times the area) of every line at its node, for K = 0 ..
+    /// Terms - 1, packed two terms (K even, K + 1) to one complex array.
+    /// </summary>
+    private static Complex[][] FarDeposits(RenderLine[] lines, List<int> members, Lineshape shape, PhaseRotation phase, Axis axis, int n)
+    {
+        var deposits = new Complex[Terms / 2][];
+        for (var p = 0; p < deposits.Length; p++) deposits[p] = new Complex[n];
+        var c = new Complex(phase.Cos, phase.Sin) * Complex.ImaginaryOne / (Math.PI * axis.Step);
+        Span<Complex> moments = stackalloc Complex[Terms];
+        double lastWidth = double.NaN, half = 0, sigma = 0;
+        foreach (var l in members)
+        {
+            var line = lines[l];
+            if (line.FwhmHz != lastWidth)
+            {
+                var profile = shape.Profile(line.FwhmHz);
+                (lastWidth, half, sigma) = (line.FwhmHz, profile.LorentzianFwhmHz / 2 / axis.Step, profile.SigmaHz / axis.Step);
+            }
+            var u = axis.Position(line.CentreHz);
+            var node = Math.Round(u);
+            Moments(new Complex(u - node, -half), sigma, moments);
+            var slot = (int)((long)node & (n - 1));
+            var scale = c * line.Area;
+            for (var p = 0; p < deposits.Length; p++)
+                deposits[p][slot] += new Complex((scale * moments[2 * p]).Real, (scale * moments[2 * p + 1]).Real);
+        }
+        return deposits;
+    }
+
+    /// <summary>Adds to <paramref name="sum"/> the far fields of terms K = 2 <paramref name="pair"/> and K + 1 from their packed deposits <paramref name="z"/> (transformed in place).</summary>
+    private static void AddFarPair(Complex[] z, int pair, double[][] kernels, Complex[] sum)
+    {
+        var n = z.Length;
+        Fourier.Forward(z, FourierOptions.NoScaling);
+        var odd = kernels[2 * pair];
+        var even = kernels[2 * pair + 1];
+        // K even: its kernel is odd, with transform i odd[k]; K + 1: its kernel is even, with transform even[k].
+        for (var k = 0; k < n; k++)
+        {
+            var mirror = Complex.Conjugate(z[(n - k) & (n - 1)]);
+            var a = 0.5 * (z[k] + mirror);
+            var b = (z[k] - mirror) * new Complex(0, -0.5);
+            sum[k] += a * new Complex(0, odd[k]) + b * even[k];
+        }
+    }
+
+    /// <summary>m_K = E[(w + g)^K] for g normal with deviation sigma: m_0 = 1, m_1 = w, m_(K+1) = w m_K + K sigma^2 m_(K-1).</summary>
+    private static void Moments(Complex w, double sigma, Span<Complex> m)
+    {
+        var variance = sigma * sigma;
+        m[0] = 1;
+        m[1] = w;
+        for (var k = 1; k < m.Length - 1; k++) m[k + 1] = w * m[k] + k * variance * m[k - 1];
+    }
+
+    /// <summary>Adds to <paramref name="sum"/> the transform of one width's Lagrange deposits convolved with its sampled profile.</summary>
+    private static void AddSmooth(RenderLine[] lines, List<int> members, LineProfile profile, PhaseRotation phase, Axis axis, int n, Complex[] sum)
+    {
+        // Deposits in the real part, the profile at every distance in the imaginary part: one transform for both.
+        var z = new Complex[n];
+        Span<double> weights = stackalloc double[LagrangeNodes];
+        foreach (var l in members)
+        {
+            var u = axis.Position(lines[l].CentreHz);
+            var node = Math.Floor(u);
+            LagrangeWeights(u - node, weights);
+            var start = (long)node - LagrangeNodes / 2 + 1;
+            for (var k = 0; k < LagrangeNodes; k++)
+            {
+                var slot = (int)((start + k) & (n - 1));
+                z[slot] = new Complex(z[slot].Real + lines[l].Area * weights[k], 0);
+            }
+        }
+        for (var d = -n / 2; d < n / 2; d++)
+        {
+            var slot = d & (n - 1);
+            z[slot] = new Complex(z[slot].Real, profile.Phased(d * axis.Step, phase));
+        }
+        Fourier.Forward(z, FourierOptions.NoScaling);
+        for (var k = 0; k < n; k++)
+        {
+            var mirror = Complex.Conjugate(z[(n - k) & (n - 1)]);
+            var deposits = 0.5 * (z[k] + mirror);
+            var kernel = (z[k] - mirror) * new Complex(0, -0.5);
+            sum[k] += deposits * kernel;
+        }
+    }
+
+    /// <summary>Lagrange weights of the nodes -5 .. 6 for a point at <paramref name="t"/> in [0, 1).</summary>
+    private static void LagrangeWeights(double t, Span<double> weights)
+    {
+        const int offset = LagrangeNodes / 2 - 1;
+        for (var k = 0; k < LagrangeNodes; k++)
+        {
+            double w = 1;
+            var xk = k - offset;
+            for (var j = 0; j < LagrangeNodes; j++)
+                if (j != k) w *= (t - (j - offset)) / (xk - (j - offset));
+            weights[k] = w;
+        }
+    }
+
+    /// <summary>
+    /// Adds each line directly within its radius of its node (radius -1: at every point of the grid; pure Gaussian
+    /// absorption: where it exceeds 1e-15 of its peak).
+    /// </summary>
+    private static void AddNear(RenderLine[] lines, List<(int Line, int Radius)> near, Lineshape shape, PhaseRotation phase, Axis axis, double[] trace)
+    {
+        if (near.Count == 0) return;
+        var cumulative = new long[near.Count + 1];
+        for (var i = 0; i < near.Count; i++)
+        {
+            var (first, last) = Window(lines[near[i].Line], near[i].Radius, shape, axis);
+            cumulative[i + 1] = cumulative[i] + Math.Max(0, last - first + 1);
+        }
+        var work = cumulative[^1];
+        var threads = (int)Math.Clamp(work / ParallelThresholdEvaluations, 1, Environment.ProcessorCount);
+        var bounds = new int[threads + 1];
+        for (var t = 1; t < threads; t++)
+        {
+            var at = Array.BinarySearch(cumulative, work * t / threads);
+            bounds[t] = at >= 0 ? at : ~at;
+        }
+        bounds[threads] = near.Count;
+        var buffers = new double[threads][];
+        Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads }, t =>
+        {
+            var buffer = t == 0 ? trace : buffers[t] = new double[trace.Length];
+            for (var i = bounds[t]; i < bounds[t + 1]; i++)
+            {
+                var line = lines[near[i].Line];
+                var (first, last) = Window(line, near[i].Radius, shape, axis);
+                var profile = shape.Profile(line.FwhmHz, tabulated: true);
+                var offset0 = axis.FirstHz - line.CentreHz;
+                for (var j = first; j <= last; j++)
+                    buffer[j] += line.Area * profile.Phased(offset0 + j * axis.Step, phase);
+            }
+        });
+        for (var t = 1; t < threads; t++)
+        {
+            var buffer = buffers[t];
+            for (var i = 0; i < trace.Length; i++) trace[i] += buffer[i];
+        }
+    }
+
+    private static (int First, int Last) Window(RenderLine line, int radius, Lineshape shape, Axis axis)
+    {
+        var u = axis.Position(line.CentreHz);
+        double low, high;
+        if (radius >= 0)
+        {
+            var node = Math.Round(u);
+            (low, high) = (node - radius, node + radius);
+        }
+        else
+        {
+            var profile = shape.Profile(line.FwhmHz);
+            // exp(-x^2 / 2) < 1e-15 beyond x = 8.3: a Gaussian holds less than 1e-15 of its area there.
+            var reach = profile.IsGaussian ? 8.3 * profile.SigmaHz / axis.Step : double.PositiveInfinity;
+            (low, high) = (Math.Ceiling(u - reach), Math.Floor(u + reach));
+        }
+        low = Math.Max(low, 0);
+        high = Math.Min(high, axis.Points - 1);
+        return low > high ? (1, 0) : ((int)low, (int)high);
+    }
 
     private static void Validate(ReadOnlySpan<RenderLine> lines)
     {
@@ -107,34 +426,10 @@ public static class TraceSynthesizer
         }
     }
 
-    private static double HalfWindowHz(RenderLine line, Lineshape shape, double cutoffFwhm) =>
-        (shape.Kind == LineshapeKind.Gaussian ? Math.Min(cutoffFwhm, GaussianCutoffFwhm) : cutoffFwhm) * line.FwhmHz;
-
-    private static void Draw(RenderLine line, Lineshape shape, double cutoffFwhm, Axis axis, double[] trace)
+    /// <summary>Grid points as Hz, ascending: FirstHz + j Step.</summary>
+    private readonly record struct Axis(double FirstHz, double Step, int Points)
     {
-        var (first, last) = axis.Window(line, HalfWindowHz(line, shape, cutoffFwhm));
-        if (first > last) return;
-        var profile = shape.Profile(line.FwhmHz, tabulated: true);
-        double offset0 = axis.FirstHz - line.CentreHz;
-        for (int i = first; i <= last; i++)
-            trace[i] += line.Area * profile.Absorption(offset0 + i * axis.StepHz);
-    }
-
-    /// <summary>The grid's points as Hz from true 0 ppm: FirstHz + i StepHz.</summary>
-    private readonly struct Axis(SpectrumGrid grid)
-    {
-        public readonly double FirstHz = grid.HzAt(0);
-        public readonly double StepHz = grid.StepHz;
-        private readonly int _points = grid.Points;
-
-        /// <summary>First and last point within halfWindowHz of the centre; first &gt; last when none is.</summary>
-        public (int First, int Last) Window(RenderLine line, double halfWindowHz)
-        {
-            double a = (line.CentreHz - halfWindowHz - FirstHz) / StepHz;
-            double b = (line.CentreHz + halfWindowHz - FirstHz) / StepHz;
-            double low = Math.Max(Math.Ceiling(Math.Min(a, b)), 0);
-            double high = Math.Min(Math.Floor(Math.Max(a, b)), _points - 1);
-            return low > high ? (1, 0) : ((int)low, (int)high);
-        }
+        /// <summary>A frequency in steps from the first point.</summary>
+        public double Position(double hz) => (hz - FirstHz) / Step;
     }
 }

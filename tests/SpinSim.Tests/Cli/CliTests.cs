@@ -16,6 +16,30 @@ public class CliTests
     internal static string Example(string name) => Path.Combine(ReferenceData.RepositoryRoot, "spin-systems", name);
 
     [Fact]
+    public void NoArguments_PrintsTheHelp()
+    {
+        var (code, output, _) = Run();
+        Assert.Equal(0, code);
+        Assert.Contains("Usage:", output);
+        Assert.Contains("simulate", output);
+    }
+
+    [Fact]
+    public void EveryExampleSystem_IsBuiltIntoTheProgram_ForTheDemo()
+    {
+        // The demo runs from any folder on these: byte for byte the repository's spin-systems/ files (exact invariant).
+        var assembly = typeof(SpinSim.Cli.Commands.DemoCommand).Assembly;
+        foreach (var file in Directory.GetFiles(Path.Combine(ReferenceData.RepositoryRoot, "spin-systems"), "*.toml"))
+        {
+            using var stream = assembly.GetManifestResourceStream("Systems." + Path.GetFileName(file));
+            Assert.True(stream is not null, $"{Path.GetFileName(file)} is not embedded");
+            using var copy = new MemoryStream();
+            stream!.CopyTo(copy);
+            Assert.Equal(File.ReadAllBytes(file), copy.ToArray());
+        }
+    }
+
+    [Fact]
     public void SimulateWritesTheLinesTableWithItsHeader()
     {
         var output = Path.Combine(Path.GetTempPath(), $"lines-{Guid.NewGuid():N}.csv");
