@@ -3,7 +3,7 @@ using SpinSim.Formats.Delimited;
 
 namespace SpinSim.Cli.Commands;
 
-/// <summary>Options that say how to read a delimited-text spectrum; shared by every command that reads measured data.</summary>
+/// <summary>Options that say how to read a delimited-text spectrum and how to process an FID; shared by every command that reads measured data.</summary>
 public sealed class DataFileOptions
 {
     public Option<string> Separator { get; } = new("--separator")
@@ -19,8 +19,12 @@ public sealed class DataFileOptions
     public Option<string> XUnit { get; } = new("--x-unit") { Description = "Unit of the text file's shift column: ppm or hz", DefaultValueFactory = _ => "ppm", HelpName = "UNIT" };
     public Option<double?> ObserveMHz { get; } = new("--observe-mhz") { Description = "Observe frequency in MHz for a text file (needed with --x-unit hz)", HelpName = "MHZ" };
 
+    /// <summary>FID processing and re-referencing.</summary>
+    public ProcessingChoice Processing { get; } = new();
+
     public void AddTo(Command command)
     {
+        Processing.AddTo(command);
         command.Options.Add(Separator);
         command.Options.Add(DecimalComma);
         command.Options.Add(XColumn);
