@@ -12,8 +12,9 @@ namespace SpinSim.Core.Processing;
 /// </summary>
 public static class FidProcessor
 {
-    /// <summary>The automatic phase is found on a spectrum of at most this many points (the phase does not depend on the size).</summary>
+    /// <summary>The automatic phase is found on the first this many points of the FID, zero filled to twice as many (the phase does not depend on the size).</summary>
     public const int PhasingPoints = 16384;
+
 
     /// <exception cref="ArgumentException">The options are not usable (see <see cref="ProcessingOptions.Problems"/>).</exception>
     public static SpectrumTrace Process(FreeInductionDecay fid, ProcessingOptions? options = null)
@@ -29,40 +30,27 @@ public static class FidProcessor
         var steps = new List<ProcessingStep>();
         var sw = fid.SpectralWidthHz;
 
-        // 1. Filter delay: the integer part by a circular shift of the acquired points (the build-up goes to the end,
-        // where the signal has decayed), the fraction as a linear phase after the transform.
+        // 1. Filter delay, removed as a band-limited shift of the acquired points (the build-up before time zero wraps to
+        // their end). When it was found from the data, the first-order phase found by the automatic phasing is what is
+        // left of it: it is folded into the delay and the phase found again, so that the shift is exact before zero filling.
         var (delay, delayHow) = o.FilterDelayPoints is { } given ? (given, "given")
             : fid.StatedFilterDelayPoints is { } stated ? (stated, "stated in the file")
-            : (FilterDelay.FromData(fid.Points), "found from the data (largest point of the FID)");
+            : (FilterDelay.FromData(fid.Points), "found from the data (the FID's first maximum, refined by the first-order phase)");
         if (delay >= n / 2.0) throw new ArgumentException($"a filter delay of {delay} points leaves too little of the {n}-point FID", nameof(options));
-        var whole = (int)Math.Round(delay);
-        var fraction = delay - whole;
-        steps.Add(new ProcessingStep("filter_delay", delayHow, [new("points", delay, "points")]));
+        var window = Window(o, n, fid.DwellSeconds);
+        var spectrum = Transform(Aligned(fid.Points, delay), delay, window, size);
 
-        // 2. Window on the time since time zero (the build-up before it is left unweighted).
-        var weighted = new Complex[n];
-        var window = Window(o, n - whole, fid.DwellSeconds, fraction);
-        for (var k = 0; k < n; k++)
-            weighted[k] = k < whole ? fid.Points[k] : fid.Points[k] * window[k - whole];
-        // Without a filter delay the first point is time zero and counts half in the discrete transform (common practice
-        // for quadrature data; the full weight adds a constant offset to the baseline).
-        if (whole == 0 && fraction == 0) weighted[0] /= 2;
-        steps.Add(o.Window == WindowShape.None
-            ? new ProcessingStep("window", "none", [])
-            : new ProcessingStep("window", o.Window == WindowShape.Exponential ? "exponential" : "Gaussian", [new("width_hz", o.WindowHz, "Hz")]));
-
-        // 3. Zero filling and the transform.
-        var spectrum = Transform(weighted, whole, size, fraction);
-        steps.Add(new ProcessingStep("zero_fill", $"{n} acquired complex points to {size}", [new("acquired_points", n, "points"), new("points", size, "points")]));
-        steps.Add(new ProcessingStep("fourier_transform", "complex FFT (MathNet.Numerics)", [new("spectral_width_hz", sw, "Hz")]));
-
-        // 4. Phase.
         double p0, p1;
         string phaseHow;
         if (o.AutomaticPhase)
         {
-            var phasing = size <= PhasingPoints ? spectrum : Transform(weighted, whole, NextPowerOfTwo(Math.Min(n, PhasingPoints)), fraction);
-            (p0, p1) = MinimumEntropyPhasing.Find(phasing);
+            (p0, p1) = FindPhase(fid.Points, delay, window, size, spectrum);
+            if (fid.StatedFilterDelayPoints is null && o.FilterDelayPoints is null && Math.Abs(p1) > 0.5)
+            {
+                delay = Math.Max(0, delay + p1 / 360);
+                spectrum = Transform(Aligned(fid.Points, delay), delay, window, size);
+                (p0, p1) = FindPhase(fid.Points, delay, window, size, spectrum);
+            }
             phaseHow = "automatic, minimum entropy (Chen et al., J. Magn. Reson. 158, 164, 2002)";
         }
         else
@@ -70,6 +58,13 @@ public static class FidProcessor
             (p0, p1) = (o.ZeroOrderPhaseDeg ?? 0, o.FirstOrderPhaseDeg ?? 0);
             phaseHow = "given";
         }
+        steps.Add(new ProcessingStep("filter_delay", delayHow, [new("points", delay, "points")]));
+        steps.Add(o.Window == WindowShape.None
+            ? new ProcessingStep("window", "none", [])
+            : new ProcessingStep("window", o.Window == WindowShape.Exponential ? "exponential" : "Gaussian", [new("width_hz", o.WindowHz, "Hz")]));
+        steps.Add(new ProcessingStep("zero_fill", $"{n} acquired complex points to {size}", [new("acquired_points", n, "points"), new("points", size, "points")]));
+        steps.Add(new ProcessingStep("fourier_transform", "complex FFT (MathNet.Numerics)", [new("spectral_width_hz", sw, "Hz")]));
+
         var real = new double[size];
         MinimumEntropyPhasing.Apply(spectrum, p0, p1, real);
 
@@ -114,13 +109,12 @@ public static class FidProcessor
         return p;
     }
 
-    private static double[] Window(ProcessingOptions o, int n, double dwell, double fraction)
+    private static double[] Window(ProcessingOptions o, int n, double dwell)
     {
         var w = new double[n];
         for (var k = 0; k < n; k++)
         {
-            // Time since time zero; the fraction of a point still to be removed puts it slightly earlier or later.
-            var t = Math.Max(0, (k - fraction) * dwell);
+            var t = k * dwell;
             w[k] = o.Window switch
             {
                 WindowShape.Exponential => Math.Exp(-Math.PI * o.WindowHz * t),
@@ -132,27 +126,55 @@ public static class FidProcessor
     }
 
     /// <summary>
-    /// The spectrum in ascending frequency (the carrier at index size/2): the signal from time zero (point
-    /// <paramref name="whole"/>) at the start of a buffer of <paramref name="size"/> points, truncated if longer, and the
-    /// filter's build-up before time zero at the buffer's end, where a circular transform puts negative times; then the
-    /// remaining fraction of a point of delay removed as a linear phase.
+    /// The acquired points moved earlier by <paramref name="delay"/> points as a band-limited (circular) shift: the
+    /// spectrum of the n points times exp(2 pi i m delay / n), m the signed frequency index. Time zero lands on point 0.
     /// </summary>
-    private static Complex[] Transform(Complex[] fid, int whole, int size, double fraction)
+    private static Complex[] Aligned(Complex[] fid, double delay)
     {
+        var n = fid.Length;
+        var data = (Complex[])fid.Clone();
+        if (delay == 0) return data;
+        Fourier.Forward(data, FourierOptions.Matlab);
+        for (var m = 0; m < n; m++)
+        {
+            var signed = m < (n + 1) / 2 ? m : m - n;
+            data[m] *= Complex.FromPolarCoordinates(1, 2 * Math.PI * signed * delay / n);
+        }
+        Fourier.Inverse(data, FourierOptions.Matlab);
+        return data;
+    }
+
+    /// <summary>
+    /// The spectrum in ascending frequency (the carrier at index size/2) of the aligned points: the signal from time zero
+    /// weighted by the window, the first point halved when
+    /// the signal steps up at time zero (the point before it, wrapped to the end, below a tenth of it): it then counts half
+    /// in the discrete transform of a one-sided signal (common practice for quadrature data); a digital filter's build-up
+    /// already spreads the step over the points before time zero, so there it keeps its weight. Zero filled to <paramref name="size"/>, with the wrapped
+    /// build-up (the last ceil(delay) points) moved to the buffer's end, where a circular transform puts negative times.
+    /// Only the first <paramref name="size"/> minus the build-up points are used when the buffer is shorter than the FID.
+    /// </summary>
+    private static Complex[] Transform(Complex[] aligned, double delay, double[] window, int size)
+    {
+        var n = aligned.Length;
+        var wrap = Math.Min((int)Math.Ceiling(delay), n / 2);
         var data = new Complex[size];
-        var signal = Math.Min(fid.Length - whole, size - whole);
-        Array.Copy(fid, whole, data, 0, signal);
-        Array.Copy(fid, 0, data, size - whole, whole);
+        var signal = Math.Min(n - wrap, size - wrap);
+        for (var k = 0; k < signal; k++) data[k] = aligned[k] * window[k];
+        if (aligned[n - 1].Magnitude < 0.1 * aligned[0].Magnitude) data[0] /= 2;
+        for (var k = 0; k < wrap; k++) data[size - wrap + k] = aligned[n - wrap + k];
         Fourier.Forward(data, FourierOptions.Matlab);
         var spectrum = new Complex[size];
         var half = size / 2;
-        for (var k = 0; k < size; k++)
-        {
-            var z = data[(k + half) % size];
-            // A delay of `fraction` points multiplies the spectrum by exp(-2 pi i f fraction dwell); undo it.
-            if (fraction != 0) z *= Complex.FromPolarCoordinates(1, 2 * Math.PI * fraction * (k - half) / size);
-            spectrum[k] = z;
-        }
+        for (var k = 0; k < size; k++) spectrum[k] = data[(k + half) % size];
         return spectrum;
+    }
+
+    /// <summary>The automatic phase, found on a spectrum of at most twice <see cref="PhasingPoints"/> points.</summary>
+    private static (double ZeroOrderDeg, double FirstOrderDeg) FindPhase(Complex[] fid, double delay, double[] window, int size, Complex[] spectrum)
+    {
+        // Zero filled once at least: on the bare acquired points a line spans too few points for a symmetric derivative.
+        var phasingSize = Math.Min(size, 2 * NextPowerOfTwo(Math.Min(fid.Length, PhasingPoints)));
+        var phasing = size <= phasingSize ? spectrum : Transform(Aligned(fid, delay), delay, window, phasingSize);
+        return MinimumEntropyPhasing.Find(phasing);
     }
 }

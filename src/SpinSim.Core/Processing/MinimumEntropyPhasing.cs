@@ -49,9 +49,14 @@ public static class MinimumEntropyPhasing
             if (cost < best.Cost) best = (p0, p1, cost);
         }
         var objective = ObjectiveFunction.Value(v => Cost(z, mask, v[0], v[1], scale, work));
-        var result = NelderMeadSimplex.Minimum(objective, Vector<double>.Build.Dense([best.P0, best.P1]),
-            Vector<double>.Build.Dense([10.0, 20.0]), 1e-10, 2000);
-        var (zero, first) = (result.MinimizingPoint[0], result.MinimizingPoint[1]);
+        // Restarted with ever smaller simplexes: one run can collapse early along one direction of a flat valley.
+        var (zero, first) = (best.P0, best.P1);
+        foreach (var size in new[] { 10.0, 2.0, 0.5 })
+        {
+            var result = NelderMeadSimplex.Minimum(objective, Vector<double>.Build.Dense([zero, first]),
+                Vector<double>.Build.Dense([size, 2 * size]), 1e-12, 5000);
+            (zero, first) = (result.MinimizingPoint[0], result.MinimizingPoint[1]);
+        }
 
         // Entropy cannot tell absorption from its negative; the penalty usually does, but make the tallest line positive.
         Apply(z, zero, first, work);
