@@ -38,7 +38,7 @@ public sealed class ProcessingChoice
             BaselineOrder = parse.GetValue(BaselineOrder),
         };
         if (parse.GetValue(Window) is { } w)
-            settings = settings with { Window = MeasuredDataSettings.ParseWindow(w) ?? throw new UserInputException($"--window {w} is not known; use exponential, gaussian or none") };
+            settings = settings with { Window = MeasuredDataSettings.ParseWindow(w) ?? throw new UserInputException("--window", $"\"{w}\" is not known", "Use exponential, gaussian or none") };
         if (parse.GetValue(Phase) is { } phase)
         {
             var (p0, p1) = Pair(phase, ',', "--phase", "ZERO,FIRST in degrees, e.g. --phase 120.5,-340");
@@ -50,7 +50,7 @@ public sealed class ProcessingChoice
             settings = settings with { Reference = new ReferenceLine(seen, truth) };
         }
         var problems = settings.Processing().Problems();
-        if (problems.Count > 0) throw new UserInputException($"FID processing options: {string.Join("; ", problems)}");
+        if (problems.Count > 0) throw new UserInputException("FID processing options", string.Join("; ", problems));
         return settings;
     }
 
@@ -66,7 +66,7 @@ public sealed class ProcessingChoice
         }
         catch (ArgumentException e)
         {
-            throw new UserInputException($"{path}: cannot set the reference line: {e.Message}");
+            throw new UserInputException(path, $"cannot set the reference line: {e.Message}", "Give the shift where the line is seen on the file's own scale (--set-shift SEEN=TRUE)");
         }
     }
 
@@ -77,6 +77,6 @@ public sealed class ProcessingChoice
             && double.TryParse(parts[0], NumberStyles.Float, CultureInfo.InvariantCulture, out var a) && double.IsFinite(a)
             && double.TryParse(parts[1], NumberStyles.Float, CultureInfo.InvariantCulture, out var b) && double.IsFinite(b))
             return (a, b);
-        throw new UserInputException($"{option} {text}: expected {expected}");
+        throw new UserInputException(option, $"\"{text}\" is not two numbers", $"Write {expected}");
     }
 }

@@ -147,8 +147,10 @@ public static class JcampReader
             var (realSpec, imagSpec) = ntuples.FidPageSpecs();
             var observeMHz = ObserveFrequency(required: true)!.Value;
             var nucleus = Nucleus();
-            var (time, re, realForm) = Decode(realSpec);
-            var (_, im, imagForm) = Decode(imagSpec);
+            // FID writers state MIN and MAX over both halves together, so the range is checked on both at once.
+            var (time, re, realForm) = Decode(realSpec, checkRange: false);
+            var (_, im, imagForm) = Decode(imagSpec, checkRange: false);
+            CheckOrdinates(realSpec with { FirstY = null }, [.. re, .. im]);
             if (re.Length != im.Length)
                 throw new SpectrumFileException(path, imagSpec.Table.Line,
                     $"the real page holds {re.Length} points but the imaginary page {im.Length}: both halves of the FID must have the same length");
@@ -175,7 +177,7 @@ public static class JcampReader
         }
 
         /// <summary>The file's points as read and scaled: x as in the file, y times its factor, and the form decoded.</summary>
-        private (double[] X, double[] Y, string Form) Decode(TableSpec spec)
+        private (double[] X, double[] Y, string Form) Decode(TableSpec spec, bool checkRange = true)
         {
             double[] xFile, yRaw;
             string form;
@@ -206,7 +208,7 @@ public static class JcampReader
                 form = $"{spec.Description} AFFN";
             }
             var intensity = Scale(yRaw, spec.YFactor, "y", spec.Table.Line);
-            CheckOrdinates(spec, intensity);
+            if (checkRange) CheckOrdinates(spec, intensity);
             return (xFile, intensity, form);
         }
 
