@@ -2,14 +2,17 @@ using System.Globalization;
 using System.Text;
 using System.Text.Json;
 using System.Text.Json.Serialization;
+using SpinSim.Core.Processing;
 using SpinSim.Core.Traces;
 
 namespace SpinSim.Formats;
 
 /// <summary>
 /// What a trace is, in a few numbers: for printing as text or as JSON with snake_case keys
-/// (format, form, points, ppm_first, ppm_last, hz_first, hz_last, observe_mhz, nucleus, y_min, y_max, warnings).
-/// Hz values are null when the observe frequency is unknown.
+/// (format, form, points, ppm_first, ppm_last, hz_first, hz_last, observe_mhz, nucleus, y_min, y_max, warnings, kind,
+/// processing, reference_ppm_shift). Hz values are null when the observe frequency is unknown. <c>kind</c> is "spectrum"
+/// or "fid" (then the numbers describe the processed trace); <c>processing</c> lists the steps applied with their values
+/// (phases in degrees), empty for a spectrum used as read.
 /// </summary>
 public sealed record TraceSummary(
     [property: JsonPropertyName("format")] string Format,
@@ -23,7 +26,10 @@ public sealed record TraceSummary(
     [property: JsonPropertyName("nucleus")] string Nucleus,
     [property: JsonPropertyName("y_min")] double YMin,
     [property: JsonPropertyName("y_max")] double YMax,
-    [property: JsonPropertyName("warnings")] IReadOnlyList<string> Warnings)
+    [property: JsonPropertyName("warnings")] IReadOnlyList<string> Warnings,
+    [property: JsonPropertyName("kind")] string Kind,
+    [property: JsonPropertyName("processing")] IReadOnlyList<ProcessingStepSummary> Processing,
+    [property: JsonPropertyName("reference_ppm_shift")] double ReferencePpmShift)
 {
     private static readonly JsonSerializerOptions Indented = new() { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
     private static readonly JsonSerializerOptions Compact = new() { WriteIndented = false, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
@@ -39,7 +45,10 @@ public sealed record TraceSummary(
             mhz is null ? null : trace.FrequencyAt(trace.Count - 1).Value,
             mhz, trace.Nucleus,
             trace.Intensity.Min(), trace.Intensity.Max(),
-            trace.Origin.Warnings.ToArray());
+            trace.Origin.Warnings.ToArray(),
+            trace.Origin.Processing?.Kind ?? ProcessingRecord.SpectrumKind,
+            ProcessingStepSummary.From(trace.Origin.Processing),
+            trace.Origin.Processing?.ReferencePpmShift ?? 0);
     }
 
     public string ToJson(bool indented = true) => JsonSerializer.Serialize(this, indented ? Indented : Compact);
@@ -60,8 +69,30 @@ public sealed record TraceSummary(
         sb.AppendLine($"nucleus: {Nucleus}");
         sb.AppendLine(c, $"y_min: {YMin:G6}");
         sb.AppendLine(c, $"y_max: {YMax:G6}");
+        sb.AppendLine($"kind: {Kind}");
+        if (Processing.Count > 0)
+        {
+            sb.AppendLine(c, $"processing: {Processing.Count} steps");
+            foreach (var step in Processing) sb.AppendLine($"  - {step.Text}");
+        }
+        sb.AppendLine(c, $"reference_ppm_shift: {ReferencePpmShift:0.######}");
         sb.AppendLine(c, $"warnings: {Warnings.Count}");
         foreach (var w in Warnings) sb.AppendLine($"  - {w}");
         return sb.ToString();
     }
+}
+
+/// <summary>One processing step for JSON: its name, how its values were chosen, and the values by name (phases in degrees).</summary>
+public sealed record ProcessingStepSummary(
+    [property: JsonPropertyName("step")] string Step,
+    [property: JsonPropertyName("how")] string How,
+    [property: JsonPropertyName("values")] IReadOnlyDictionary<string, double> Values)
+{
+    [JsonIgnore]
+    public string Text { get; init; } = "";
+
+    public static IReadOnlyList<ProcessingStepSummary> From(ProcessingRecord? record) =>
+        record is null
+            ? []
+            : record.Steps.Select(s => new ProcessingStepSummary(s.Name, s.How, s.Values.ToDictionary(v => v.Name, v => v.Value)) { Text = s.ToString() }).ToArray();
 }

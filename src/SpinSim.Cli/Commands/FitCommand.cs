@@ -77,10 +77,13 @@ public static class FitCommand
             var figureOptions = figure.Options(parse, $"Fit of {Path.GetFileName(systemPath)}");
 
             var delimited = data.Read(parse);
+            var section = setupPath is not null ? SpinSystemToml.ReadFitFile(setupPath) : document.Fit;
+            // FID processing and re-referencing: the fit setup's values, each replaced by one given on the command line.
+            var measured = FitSetupReader.ReadMeasuredData(section).OverriddenBy(data.Processing.Read(parse));
             var traces = new List<SpectrumTrace>();
             foreach (var p in paths)
             {
-                var t = SpectrumFiles.Read(p, delimited);
+                var t = ProcessingChoice.ReadTrace(p, delimited, measured);
                 foreach (var w in t.Origin.Warnings) io.Warn($"{p}: {w}");
                 if (t.Nucleus != system.Observed.Symbol)
                     throw new UserInputException(p, $"the trace is a {t.Nucleus} spectrum but the system observes {system.Observed}");
@@ -93,7 +96,6 @@ public static class FitCommand
                 traces.Add(t);
             }
 
-            var section = setupPath is not null ? SpinSystemToml.ReadFitFile(setupPath) : document.Fit;
             var settings = FitSetupReader.Read(section, system, traces.Count, document.Symmetries);
             var setup = settings.Setup;
             if (parse.GetValue(starts) is { } count) setup = setup with { Starts = count };
@@ -215,6 +217,8 @@ public static class FitCommand
         ("starts reaching the best optimum", $"{r.StartsAtBest} of {r.Starts}"),
         ("starts that joined another's path", r.StartsJoined.ToString(CultureInfo.InvariantCulture)),
         ("block bootstrap", r.Bootstrap is { } b ? $"{b.Converged} of {b.Replicates} refits, blocks of {b.BlockPoints} points (errors in brackets)" : "not run"),
+        .. r.Traces.Where(t => t.Measured.Origin.Processing is not null).Select(t => (
+            $"processing of {Path.GetFileName(t.Measured.Origin.Source)}", string.Join("; ", t.Measured.Origin.Processing!.Describe()))),
     ];
 
     private static string Format(double v, ParameterKind kind) => v.ToString(ParameterKindInfo.Of(kind).ValueFormat, CultureInfo.InvariantCulture);
@@ -222,6 +226,9 @@ public static class FitCommand
     private static void PrintReport(TextWriter o, SpectrumFitResult r, string systemPath, IReadOnlyList<string> data)
     {
         o.WriteLine($"fit of {systemPath} to {string.Join(", ", data)}");
+        foreach (var t in r.Traces)
+            if (t.Measured.Origin.Processing is { } record)
+                o.WriteLine($"{Path.GetFileName(t.Measured.Origin.Source)} ({record.Kind}): {string.Join("; ", record.Describe())}");
         if (r.Overlay)
         {
             o.WriteLine("nothing varied: the simulation at the given values compared with the data");

@@ -142,6 +142,9 @@ public static class SimulateCommand
         var ext => throw new UserInputException(path, $"unknown spectrum file type \"{ext}\"", "Use .csv, .jdx or .dx"),
     };
 
+    /// <summary>Refuses a trace path whose extension names no trace format, before any work.</summary>
+    internal static void WriteTraceCheck(string path) => TraceFormatOf(path);
+
     /// <summary>Stages a trace in the format its extension names.</summary>
     internal static void WriteTrace(StagedOutputs outputs, string path, SpectrumTrace trace, JcampForm form, IReadOnlyList<string> comments)
     {

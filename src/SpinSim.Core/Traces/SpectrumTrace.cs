@@ -1,3 +1,4 @@
+using SpinSim.Core.Processing;
 using SpinSim.Core.Units;
 
 namespace SpinSim.Core.Traces;
@@ -6,7 +7,7 @@ namespace SpinSim.Core.Traces;
 /// Where a trace came from and what its reader noticed on the way: the source (file name or a
 /// description such as "simulated"), the format ("JCAMP-DX 5.01", "delimited text"), the data form
 /// ("XYDATA (X++(Y..Y)) SQZ+DIF"), the warnings raised while reading, and the header labels worth
-/// keeping (label as written, value as written).
+/// keeping (label as written, value as written); for processed or re-referenced data, the <see cref="Processing"/> record.
 /// </summary>
 public sealed record TraceOrigin(
     string Source,
@@ -17,6 +18,9 @@ public sealed record TraceOrigin(
 {
     private static readonly IReadOnlyDictionary<string, string> NoLabels = new Dictionary<string, string>();
 
+    /// <summary>What was done to the data after reading (FID processing, re-referencing), or null when nothing was.</summary>
+    public ProcessingRecord? Processing { get; init; }
+
     /// <summary>An origin for data that did not come from a file (a simulation, a test).</summary>
     public static TraceOrigin Describe(string source, string format = "in memory", string form = "") =>
         new(source, format, form, [], NoLabels);
@@ -25,6 +29,7 @@ public sealed record TraceOrigin(
     public bool Equals(TraceOrigin? other) =>
         other is not null
         && Source == other.Source && Format == other.Format && Form == other.Form
+        && Equals(Processing, other.Processing)
         && Warnings.SequenceEqual(other.Warnings)
         && HeaderLabels.Count == other.HeaderLabels.Count
         && HeaderLabels.All(kv => other.HeaderLabels.TryGetValue(kv.Key, out var v) && v == kv.Value);

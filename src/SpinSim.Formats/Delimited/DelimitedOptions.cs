@@ -40,11 +40,19 @@ public sealed record DelimitedOptions
     /// <summary>True: the first line names the columns; false: it is data; null: a header is assumed when the first line is not all numbers.</summary>
     public bool? HasHeader { get; init; }
 
+    /// <summary>
+    /// The decimal mark. With <see cref="DecimalMark.Point"/> (the default) and columns separated by semicolons, tabs or
+    /// blanks, numbers such as 7,26 are recognised as written with a decimal comma, and the reader says so.
+    /// </summary>
     public DecimalMark DecimalMark { get; init; } = DecimalMark.Point;
 
     /// <summary>Header name of the x column (case-insensitive); when null, <see cref="XColumnIndex"/> is used.</summary>
     public string? XColumnName { get; init; }
 
+    /// <summary>
+    /// 0-based x column. When neither columns nor names are chosen (indices 0 and 1) and the first column counts points
+    /// (0, 1, 2, ... or 1, 2, 3, ...) with at least two more columns, the reader takes columns 1 and 2 and says so.
+    /// </summary>
     public int XColumnIndex { get; init; }
 
     /// <summary>Header name of the intensity column (case-insensitive); when null, <see cref="YColumnIndex"/> is used.</summary>
@@ -52,7 +60,8 @@ public sealed record DelimitedOptions
 
     public int YColumnIndex { get; init; } = 1;
 
-    public DelimitedXUnit XUnit { get; init; } = DelimitedXUnit.Ppm;
+    /// <summary>The x unit; null: Hz when the x column's header names Hz (such as "freq_Hz" or "Hz"), else ppm.</summary>
+    public DelimitedXUnit? XUnit { get; init; }
 
     /// <summary>Observe frequency of the nucleus in MHz: required for x in Hz, optional (but kept) for x in ppm.</summary>
     public double? ObserveMHz { get; init; }

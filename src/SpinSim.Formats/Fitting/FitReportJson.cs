@@ -8,7 +8,8 @@ namespace SpinSim.Formats.Fitting;
 /// <summary>
 /// The fit report as JSON: <c>converged</c>, <c>rms</c>, <c>parameters</c> (each with <c>name</c>, <c>kind</c>, <c>nuclei</c>,
 /// <c>value</c>, <c>std_error</c>, <c>unit</c>, <c>varied</c>, <c>tied_with</c>, <c>at_bound</c>), the correlation matrix,
-/// statistics, warnings and the inputs with their SHA-256.
+/// statistics, warnings, <c>data</c> (per trace: <c>source</c>, <c>kind</c> "spectrum" or "fid", the <c>processing</c> steps
+/// with their values, phases in degrees, and <c>reference_ppm_shift</c>) and the inputs with their SHA-256.
 /// </summary>
 public static class FitReportJson
 {
@@ -17,6 +18,20 @@ public static class FitReportJson
     /// <c>start_rms</c>, <c>start_was_best</c> and <c>overlay</c>.
     /// </summary>
     public const int SchemaVersion = 2;
+
+    /// <summary>How one fitted trace was made from its file: kind, processing steps and values, re-referencing shift.</summary>
+    public static JsonObject DataNode(SpinSim.Core.Traces.TraceOrigin origin) => new()
+    {
+        ["source"] = Path.GetFileName(origin.Source),
+        ["kind"] = origin.Processing?.Kind ?? SpinSim.Core.Processing.ProcessingRecord.SpectrumKind,
+        ["processing"] = new JsonArray((origin.Processing?.Steps ?? []).Select(step => (JsonNode)new JsonObject
+        {
+            ["step"] = step.Name,
+            ["how"] = step.How,
+            ["values"] = new JsonObject(step.Values.Select(v => KeyValuePair.Create(v.Name, (JsonNode?)JsonValue.Create(v.Value)))),
+        }).ToArray()),
+        ["reference_ppm_shift"] = origin.Processing?.ReferencePpmShift ?? 0,
+    };
 
     public static string Write(SpectrumFitResult result, IEnumerable<(string Name, string Sha256)> inputs, string version, DateTimeOffset created)
     {
@@ -68,6 +83,7 @@ public static class FitReportJson
             ["warnings"] = new JsonArray(result.Warnings.Select(w => (JsonNode)JsonValue.Create(w)!).ToArray()),
             ["note"] = "standard errors are s^2 (J^T J)^-1 with s^2 = RSS / (n - p); neighbouring points of a digitised spectrum are not independent, so they are optimistic",
             ["setup"] = result.Setup is { } setup ? Setup(setup) : null,
+            ["data"] = new JsonArray(result.Traces.Select(t => (JsonNode)DataNode(t.Measured.Origin)).ToArray()),
             ["inputs"] = new JsonArray(inputs.Select(i => (JsonNode)new JsonObject { ["file"] = i.Name, ["sha256"] = i.Sha256 }).ToArray()),
             ["version"] = version,
             ["created"] = created.ToString("O"),

@@ -40,7 +40,66 @@ public static class FitSetupReader
 {
     private static readonly string[] Keys =
         ["regions_ppm", "exclude_ppm", "vary", "fix", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape",
-         "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric", "linewidth_per_trace"];
+         "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric", "linewidth_per_trace", "set_shift_ppm"];
+
+    private static readonly string[] FidKeys = ["window", "window_hz", "points", "filter_delay_points", "phase_deg", "baseline_order"];
+
+    /// <summary>
+    /// The measured-data part of a [fit] section: <c>set_shift_ppm = [seen, true]</c> in [fit], and the FID processing in
+    /// [fit.fid] (<c>window</c>, <c>window_hz</c>, <c>points</c>, <c>filter_delay_points</c>, <c>phase_deg = [zero, first]</c>,
+    /// <c>baseline_order</c>). Values are checked here; missing ones stay null.
+    /// </summary>
+    public static MeasuredDataSettings ReadMeasuredData(FitSection? section)
+    {
+        var settings = new MeasuredDataSettings();
+        if (section is null) return settings;
+        var path = section.Path;
+        foreach (var e in section.Entries)
+        {
+            if (e.Table == "fit" && e.Key == "set_shift_ppm")
+            {
+                var (seen, truth) = Pair(path, e, "set_shift_ppm = [2.09, 2.05]  # the line seen at 2.09 ppm is set to 2.05");
+                settings = settings with { Reference = new ReferenceLine(seen, truth) };
+                continue;
+            }
+            if (e.Table != "fit.fid") continue;
+            switch (e.Key)
+            {
+                case "window":
+                    var shape = e.Value is string w ? MeasuredDataSettings.ParseWindow(w) : null;
+                    settings = settings with { Window = shape ?? throw new FitSetupException(path, e.Line, $"unknown window {e.Value}", "Use \"exponential\", \"gaussian\" or \"none\"") };
+                    break;
+                case "window_hz":
+                    var hz = Number(path, e);
+                    if (hz is < 0 or > 100) throw new FitSetupException(path, e.Line, $"window_hz is {hz}", "Use a width from 0 to 100 Hz");
+                    settings = settings with { WindowHz = hz };
+                    break;
+                case "points":
+                    var n = Number(path, e);
+                    if (n < 16 || n > (1 << 22) || n != Math.Floor(n) || ((long)n & ((long)n - 1)) != 0)
+                        throw new FitSetupException(path, e.Line, $"points is {n}", "Use a power of two such as 65536, at least the FID's point count");
+                    settings = settings with { Points = (int)n };
+                    break;
+                case "filter_delay_points":
+                    var d = Number(path, e);
+                    if (d is < 0 or > 1000) throw new FitSetupException(path, e.Line, $"filter_delay_points is {d}", "Use a delay from 0 to 1000 points");
+                    settings = settings with { FilterDelayPoints = d };
+                    break;
+                case "phase_deg":
+                    var (p0, p1) = Pair(path, e, "phase_deg = [120.5, -340]  # zero order, first order in degrees");
+                    settings = settings with { ZeroOrderPhaseDeg = p0, FirstOrderPhaseDeg = p1 };
+                    break;
+                case "baseline_order":
+                    var b = Number(path, e);
+                    if (b is < 0 or > 5 || b != Math.Floor(b)) throw new FitSetupException(path, e.Line, $"baseline_order is {b}", "Use a whole number from 0 to 5");
+                    settings = settings with { BaselineOrder = (int)b };
+                    break;
+                default:
+                    throw new FitSetupException(path, e.Line, $"unknown key \"{e.Key}\" in [fit.fid]", $"Allowed keys: {string.Join(", ", FidKeys)}");
+            }
+        }
+        return settings;
+    }
 
     public static FitSettings Read(FitSection? section, SpinSystem system, int traces, IReadOnlyList<MirrorSymmetry>? symmetries = null)
     {
@@ -53,6 +112,7 @@ public static class FitSetupReader
         var bounds = new Dictionary<string, (double, double)>();
         foreach (var e in section.Entries)
         {
+            if (e.Table == "fit.fid" || (e.Table == "fit" && e.Key == "set_shift_ppm")) continue; // read by ReadMeasuredData
             if (e.Table == "fit.bounds")
             {
                 var pair = Pair(path, e, $"\"{e.Key}\" = [low, high]");
@@ -61,7 +121,7 @@ public static class FitSetupReader
                 continue;
             }
             if (e.Table != "fit")
-                throw new FitSetupException(path, e.Line, $"unknown table [{e.Table}]", "Use [fit] and [fit.bounds]");
+                throw new FitSetupException(path, e.Line, $"unknown table [{e.Table}]", "Use [fit], [fit.bounds] and [fit.fid]");
             switch (e.Key)
             {
                 case "regions_ppm": setup = setup with { Regions = Ranges(path, e) }; break;

@@ -1,6 +1,8 @@
 // JCAMP-DX 4.24/5.x reader: McDonald & Wilks, Appl. Spectrosc. 42, 151 (1988); NMR labels: Davies & Lampen, Appl. Spectrosc. 47, 1093 (1993).
 using System.Globalization;
 using System.Text;
+using System.Numerics;
+using SpinSim.Core.Processing;
 using SpinSim.Core.Traces;
 
 namespace SpinSim.Formats.Jcamp;
@@ -23,18 +25,31 @@ public static class JcampReader
     /// <summary>Files beyond this many points are refused rather than exhausting memory (a 50 MB file holds far fewer).</summary>
     public const int MaxPoints = 1 << 26;
 
-    /// <summary>Reads the file at <paramref name="path"/>.</summary>
-    /// <exception cref="SpectrumFileException">The file cannot be read or is not a usable JCAMP-DX spectrum.</exception>
-    public static SpectrumTrace Read(string path)
+    /// <summary>Reads the file at <paramref name="path"/>; an FID is processed with <paramref name="processing"/> (defaults when null).</summary>
+    /// <exception cref="SpectrumFileException">The file cannot be read or is not a usable JCAMP-DX spectrum or FID.</exception>
+    public static SpectrumTrace Read(string path, ProcessingOptions? processing = null)
+    {
+        ArgumentNullException.ThrowIfNull(path);
+        return ReadData(path).ToTrace(processing);
+    }
+
+    /// <summary>Reads JCAMP-DX text; <paramref name="sourceName"/> names it in messages and in the trace's origin. An FID is processed.</summary>
+    /// <exception cref="SpectrumFileException">The text is not a usable JCAMP-DX spectrum or FID.</exception>
+    public static SpectrumTrace Parse(string text, string sourceName, ProcessingOptions? processing = null) =>
+        ParseData(text, sourceName).ToTrace(processing);
+
+    /// <summary>Reads the file at <paramref name="path"/> as it is: a spectrum, or an unprocessed FID.</summary>
+    /// <exception cref="SpectrumFileException">The file cannot be read or is not a usable JCAMP-DX spectrum or FID.</exception>
+    public static MeasuredData ReadData(string path)
     {
         ArgumentNullException.ThrowIfNull(path);
         var text = SpectrumFiles.ReadText(path);
-        return Parse(text, path);
+        return ParseData(text, path);
     }
 
-    /// <summary>Reads JCAMP-DX text; <paramref name="sourceName"/> names it in messages and in the trace's origin.</summary>
-    /// <exception cref="SpectrumFileException">The text is not a usable JCAMP-DX spectrum.</exception>
-    public static SpectrumTrace Parse(string text, string sourceName)
+    /// <summary>Reads JCAMP-DX text as it is: a spectrum, or an unprocessed FID.</summary>
+    /// <exception cref="SpectrumFileException">The text is not a usable JCAMP-DX spectrum or FID.</exception>
+    public static MeasuredData ParseData(string text, string sourceName)
     {
         ArgumentNullException.ThrowIfNull(text);
         ArgumentNullException.ThrowIfNull(sourceName);
@@ -93,16 +108,77 @@ public static class JcampReader
     {
         private readonly Dictionary<string, Ldr> _header = HeaderOf(block, warnings);
 
-        public SpectrumTrace Read()
+        public MeasuredData Read()
         {
             if (string.IsNullOrEmpty(version))
                 warnings.Add("no ##JCAMP-DX= version label; read as JCAMP-DX 5.01");
             else if (!(version.StartsWith("4.24") || version.StartsWith('5') || version.StartsWith('6')))
                 warnings.Add($"##JCAMP-DX={version}: versions 4.24 to 6.0 are known; read as 5.01");
-            var spec = block.Records.Exists(r => r.Label == "NTUPLES") ? NtuplesSpec() : XyDataSpec();
+            if (block.Records.Exists(r => r.Label == "NTUPLES"))
+            {
+                var ntuples = NtuplesPages();
+                if (ntuples.IsTimeDomain) return new MeasuredData(ReadFid(ntuples));
+                return new MeasuredData(ReadSpectrum(ntuples.RealPageSpec()));
+            }
+            return new MeasuredData(ReadSpectrum(XyDataSpec()));
+        }
+
+        private SpectrumTrace ReadSpectrum(TableSpec spec)
+        {
             var observeMHz = ObserveFrequency(spec.XUnits == "HZ");
             var nucleus = Nucleus();
+            var (xFile, intensity, form) = Decode(spec);
+            var ppm = ToPpm(spec, xFile, observeMHz);
 
+            var origin = new TraceOrigin(path, version.Length == 0 ? "JCAMP-DX" : $"JCAMP-DX {version}", form, warnings.ToArray(), Labels());
+            try
+            {
+                return new SpectrumTrace(ppm, intensity, observeMHz, nucleus, origin);
+            }
+            catch (ArgumentException e)
+            {
+                throw new SpectrumFileException(path, spec.Table.Line, $"the decoded values do not form a trace: {e.Message}", e);
+            }
+        }
+
+        /// <summary>A time-domain FID: the real and imaginary pages, x in seconds.</summary>
+        private FreeInductionDecay ReadFid(NtuplesTable ntuples)
+        {
+            var (realSpec, imagSpec) = ntuples.FidPageSpecs();
+            var observeMHz = ObserveFrequency(required: true)!.Value;
+            var nucleus = Nucleus();
+            // FID writers state MIN and MAX over both halves together, so the range is checked on both at once.
+            var (time, re, realForm) = Decode(realSpec, checkRange: false);
+            var (_, im, imagForm) = Decode(imagSpec, checkRange: false);
+            CheckOrdinates(realSpec with { FirstY = null }, [.. re, .. im]);
+            if (re.Length != im.Length)
+                throw new SpectrumFileException(path, imagSpec.Table.Line,
+                    $"the real page holds {re.Length} points but the imaginary page {im.Length}: both halves of the FID must have the same length");
+            if (re.Length < FreeInductionDecay.MinPoints)
+                throw new SpectrumFileException(path, realSpec.Table.Line, $"the FID holds {re.Length} points; at least {FreeInductionDecay.MinPoints} are needed");
+            var dwell = (time[^1] - time[0]) / (time.Length - 1);
+            if (!(dwell > 0 && double.IsFinite(dwell)))
+                throw new SpectrumFileException(path, realSpec.Table.Line,
+                    $"the time axis runs from {G(time[0])} to {G(time[^1])} s: expected increasing times (FIRST and LAST of the TIME column)");
+            var points = new Complex[re.Length];
+            for (var i = 0; i < points.Length; i++) points[i] = new Complex(re[i], im[i]);
+            var highEdge = FidReference(re.Length, dwell);
+            var delay = StatedFilterDelay(re.Length);
+            var form = $"{realForm}; {imagForm}";
+            var origin = new TraceOrigin(path, version.Length == 0 ? "JCAMP-DX" : $"JCAMP-DX {version}", form, warnings.ToArray(), Labels());
+            try
+            {
+                return new FreeInductionDecay(points, dwell, observeMHz, nucleus, highEdge, delay, origin);
+            }
+            catch (ArgumentException e)
+            {
+                throw new SpectrumFileException(path, realSpec.Table.Line, $"the decoded values do not form an FID: {e.Message}", e);
+            }
+        }
+
+        /// <summary>The file's points as read and scaled: x as in the file, y times its factor, and the form decoded.</summary>
+        private (double[] X, double[] Y, string Form) Decode(TableSpec spec, bool checkRange = true)
+        {
             double[] xFile, yRaw;
             string form;
             if (spec.IsXyData)
@@ -131,20 +207,9 @@ public static class JcampReader
                 CheckEnds(spec, xFile);
                 form = $"{spec.Description} AFFN";
             }
-
             var intensity = Scale(yRaw, spec.YFactor, "y", spec.Table.Line);
-            CheckOrdinates(spec, intensity);
-            var ppm = ToPpm(spec, xFile, observeMHz);
-
-            var origin = new TraceOrigin(path, version.Length == 0 ? "JCAMP-DX" : $"JCAMP-DX {version}", form, warnings.ToArray(), Labels());
-            try
-            {
-                return new SpectrumTrace(ppm, intensity, observeMHz, nucleus, origin);
-            }
-            catch (ArgumentException e)
-            {
-                throw new SpectrumFileException(path, spec.Table.Line, $"the decoded values do not form a trace: {e.Message}", e);
-            }
+            if (checkRange) CheckOrdinates(spec, intensity);
+            return (xFile, intensity, form);
         }
 
         private TableSpec XyDataSpec()
@@ -170,12 +235,96 @@ public static class JcampReader
                 npoints, _header.TryGetValue("NPOINTS", out var n) ? n.Line : null);
         }
 
-        /// <summary>An NTUPLES spectrum: per-column attributes, then pages; the real page is read.</summary>
-        private TableSpec NtuplesSpec()
+        /// <summary>One page of an NTUPLES table: its ##PAGE= and ##DATA TABLE= records, page labels, form and columns.</summary>
+        private sealed record NtuplesPage(Ldr Table, Dictionary<string, Ldr> Labels, string Form, bool IsXyData, int XCol, int YCol, string PageText);
+
+        /// <summary>An NTUPLES table: per-column attributes, then pages. Spectra read the real page; FIDs the real and imaginary pages.</summary>
+        private sealed class NtuplesTable(BlockReader reader, string path, List<string> warnings, int startLine, Dictionary<string, Ldr> columns, List<NtuplesPage> pages, string[] symbols, string[] names)
+        {
+            public string[] Column(string label) =>
+                columns.TryGetValue(label, out var r) ? r.Value.Split(',', StringSplitOptions.TrimEntries) : [];
+
+            /// <summary>True when the x column is in seconds (an FID).</summary>
+            public bool IsTimeDomain
+            {
+                get
+                {
+                    var units = Column("UNITS");
+                    var x = pages[0].XCol;
+                    return x < units.Length && units[x].Trim().ToUpperInvariant() is "SECONDS" or "SECOND" or "S";
+                }
+            }
+
+            private bool Named(int col, string word, string symbol) =>
+                (col < names.Length && names[col].Contains(word, StringComparison.OrdinalIgnoreCase))
+                || symbols[col].Equals(symbol, StringComparison.OrdinalIgnoreCase);
+
+            private string SymbolName(int col) => col < names.Length && names[col].Length > 0 ? names[col] : symbols[col];
+
+            public TableSpec RealPageSpec()
+            {
+                var chosen = pages.FindIndex(p => Named(p.YCol, "REAL", "R"));
+                if (chosen < 0)
+                {
+                    chosen = 0;
+                    warnings.Add("NTUPLES: no page holds a real spectrum column; the first page was read");
+                }
+                var c = pages[chosen];
+                var others = pages.Where((_, i) => i != chosen).Select(p => $"{p.PageText} ({SymbolName(p.YCol)})").ToList();
+                warnings.Add($"NTUPLES: read the real page {c.PageText} ({SymbolName(c.YCol)})" +
+                    (others.Count > 0 ? $"; not read: {string.Join(", ", others)}" : ""));
+                return Spec(c, timeDomain: false);
+            }
+
+            public (TableSpec Real, TableSpec Imaginary) FidPageSpecs()
+            {
+                var real = pages.Find(p => Named(p.YCol, "REAL", "R"));
+                var imaginary = pages.Find(p => Named(p.YCol, "IMAG", "I"));
+                if (real is null || imaginary is null)
+                    throw new SpectrumFileException(path, startLine,
+                        "an FID (x in SECONDS) needs a real and an imaginary page (VAR_NAME .../REAL and .../IMAG, or SYMBOL R and I); " +
+                        $"the pages hold {string.Join(", ", pages.Select(p => SymbolName(p.YCol)))}");
+                return (Spec(real, timeDomain: true), Spec(imaginary, timeDomain: true));
+            }
+
+            private double? At(string label, int col, bool required = false)
+            {
+                var values = Column(label);
+                if (col < values.Length && values[col].Length > 0)
+                    return reader.ParseNumber(values[col], columns[label]);
+                if (required)
+                    throw new SpectrumFileException(path, startLine,
+                        $"NTUPLES: ##{label}= gives no value for column {symbols[col]}; it is required to build the axis");
+                return null;
+            }
+
+            private TableSpec Spec(NtuplesPage c, bool timeDomain)
+            {
+                var xUnitsList = Column("UNITS");
+                if (c.XCol >= xUnitsList.Length || xUnitsList[c.XCol].Length == 0)
+                    throw new SpectrumFileException(path, startLine, $"NTUPLES: ##UNITS= gives no unit for the x column {symbols[c.XCol]}");
+                var pageN = c.Labels.TryGetValue("NPOINTS", out var pn) ? pn : null;
+                int? npoints = pageN is not null ? reader.ParseCount(pageN)
+                    : At("VARDIM", c.YCol) is { } dim ? reader.CountFrom(dim, columns["VARDIM"]) : null;
+                if (c.IsXyData && npoints is null)
+                    throw new SpectrumFileException(path, startLine, "NTUPLES: neither ##VAR_DIM= nor the page's ##NPOINTS= gives the number of points");
+                var firstY = c.Labels.TryGetValue("FIRSTY", out var fy) ? reader.ParseNumber(fy.Value, fy) : At("FIRST", c.YCol);
+                var first = At("FIRST", c.XCol, required: c.IsXyData);
+                var last = At("LAST", c.XCol, required: c.IsXyData);
+                var unitsLdr = new Ldr("UNITS", "UNITS", xUnitsList[c.XCol], columns["UNITS"].Line, 0, 0);
+                return new TableSpec(c.Table, c.Form, c.IsXyData, $"NTUPLES {c.PageText} {c.Form}",
+                    timeDomain ? "SECONDS" : reader.Units(unitsLdr),
+                    At("FACTOR", c.XCol) ?? 1, At("FACTOR", c.YCol) ?? 1,
+                    first, last, null, firstY, At("MIN", c.YCol), At("MAX", c.YCol),
+                    npoints, pageN?.Line ?? (columns.TryGetValue("VARDIM", out var vd) ? vd.Line : null));
+            }
+        }
+
+        private NtuplesTable NtuplesPages()
         {
             var start = block.Records.FindIndex(r => r.Label == "NTUPLES");
             var columns = new Dictionary<string, Ldr>();
-            var pages = new List<(Ldr Page, Ldr Table, Dictionary<string, Ldr> Labels)>();
+            var raw = new List<(Ldr Page, Ldr Table, Dictionary<string, Ldr> Labels)>();
             Ldr? page = null;
             var pageLabels = new Dictionary<string, Ldr>();
             for (var i = start + 1; i < block.Records.Count; i++)
@@ -187,25 +336,25 @@ public static class JcampReader
                 {
                     if (page is null)
                         throw new SpectrumFileException(path, r.Line, "##DATA TABLE= before any ##PAGE=: each NTUPLES page starts with ##PAGE=");
-                    pages.Add((page, r, pageLabels));
+                    raw.Add((page, r, pageLabels));
                 }
                 else if (page is null) columns.TryAdd(r.Label, r);
                 else pageLabels.TryAdd(r.Label, r);
             }
-            if (pages.Count == 0)
-                throw new SpectrumFileException(path, block.Records[start].Line,
-                    "##NTUPLES= with no ##PAGE= and ##DATA TABLE=: expected at least one page of data");
+            var startLine = block.Records[start].Line;
+            if (raw.Count == 0)
+                throw new SpectrumFileException(path, startLine, "##NTUPLES= with no ##PAGE= and ##DATA TABLE=: expected at least one page of data");
 
             string[] Column(string label) =>
                 columns.TryGetValue(label, out var r) ? r.Value.Split(',', StringSplitOptions.TrimEntries) : [];
             var symbols = Column("SYMBOL");
             var names = Column("VARNAME");
             if (symbols.Length == 0)
-                throw new SpectrumFileException(path, block.Records[start].Line, "##NTUPLES= without ##SYMBOL=: the columns cannot be matched to the pages");
+                throw new SpectrumFileException(path, startLine, "##NTUPLES= without ##SYMBOL=: the columns cannot be matched to the pages");
 
             // Parse each page's form, e.g. "(X++(R..R)), XYDATA".
-            var parsed = new List<(Ldr Table, Dictionary<string, Ldr> Labels, string Form, bool IsXyData, int XCol, int YCol, string PageText)>();
-            foreach (var (p, t, labels) in pages)
+            var pages = new List<NtuplesPage>();
+            foreach (var (p, t, labels) in raw)
             {
                 var form = NormaliseForm(t.Value.Split(',')[0]);
                 var (xs, ys, isXy) = SymbolsOf(form) ?? throw new SpectrumFileException(path, t.Line,
@@ -215,49 +364,9 @@ public static class JcampReader
                 if (xCol < 0 || yCol < 0)
                     throw new SpectrumFileException(path, t.Line,
                         $"##DATA TABLE={t.Value} names a symbol not in ##SYMBOL={string.Join(",", symbols)}");
-                parsed.Add((t, labels, form, isXy, xCol, yCol, p.Value));
+                pages.Add(new NtuplesPage(t, labels, form, isXy, xCol, yCol, p.Value));
             }
-            bool IsReal(int col) =>
-                (col < names.Length && names[col].Contains("REAL", StringComparison.OrdinalIgnoreCase))
-                || symbols[col].Equals("R", StringComparison.OrdinalIgnoreCase);
-            var chosenIndex = parsed.FindIndex(p => IsReal(p.YCol));
-            if (chosenIndex < 0)
-            {
-                chosenIndex = 0;
-                warnings.Add("NTUPLES: no page holds a real spectrum column; the first page was read");
-            }
-            var c = parsed[chosenIndex];
-            var others = parsed.Where((_, i) => i != chosenIndex).Select(p => $"{p.PageText} ({SymbolName(p.YCol)})").ToList();
-            warnings.Add($"NTUPLES: read the real page {c.PageText} ({SymbolName(c.YCol)})" +
-                (others.Count > 0 ? $"; not read: {string.Join(", ", others)}" : ""));
-
-            string SymbolName(int col) => col < names.Length && names[col].Length > 0 ? names[col] : symbols[col];
-            double? At(string label, int col, bool required = false)
-            {
-                var values = Column(label);
-                if (col < values.Length && values[col].Length > 0)
-                    return ParseNumber(values[col], columns[label]);
-                if (required)
-                    throw new SpectrumFileException(path, block.Records[start].Line,
-                        $"NTUPLES: ##{label}= gives no value for column {symbols[col]}; it is required to build the axis");
-                return null;
-            }
-
-            var xUnitsList = Column("UNITS");
-            if (c.XCol >= xUnitsList.Length || xUnitsList[c.XCol].Length == 0)
-                throw new SpectrumFileException(path, block.Records[start].Line, $"NTUPLES: ##UNITS= gives no unit for the x column {symbols[c.XCol]}");
-            var pageN = c.Labels.TryGetValue("NPOINTS", out var pn) ? pn : null;
-            int? npoints = pageN is not null ? (int?)ParseCount(pageN) : At("VARDIM", c.YCol) is { } dim ? CountFrom(dim, columns["VARDIM"]) : null;
-            if (c.IsXyData && npoints is null)
-                throw new SpectrumFileException(path, block.Records[start].Line, "NTUPLES: neither ##VAR_DIM= nor the page's ##NPOINTS= gives the number of points");
-            var firstY = c.Labels.TryGetValue("FIRSTY", out var fy) ? ParseNumber(fy.Value, fy) : At("FIRST", c.YCol);
-            var first = At("FIRST", c.XCol, required: c.IsXyData);
-            var last = At("LAST", c.XCol, required: c.IsXyData);
-            return new TableSpec(c.Table, c.Form, c.IsXyData, $"NTUPLES {c.PageText} {c.Form}",
-                Units(new Ldr("UNITS", "UNITS", xUnitsList[c.XCol], columns["UNITS"].Line, 0, 0)),
-                At("FACTOR", c.XCol) ?? 1, At("FACTOR", c.YCol) ?? 1,
-                first, last, null, firstY, At("MIN", c.YCol), At("MAX", c.YCol),
-                npoints, pageN?.Line ?? (columns.TryGetValue("VARDIM", out var vd) ? vd.Line : null));
+            return new NtuplesTable(this, path, warnings, startLine, columns, pages, symbols, names);
         }
 
         private static (string X, string Y, bool IsXyData)? SymbolsOf(string form)
@@ -374,6 +483,7 @@ public static class JcampReader
             }
             else
             {
+                if (refIndex < 0) refIndex = PointZero(x, sf, refPpm);
                 for (var i = 0; i < x.Length; i++) ppm[i] = refPpm + (x[i] - x[refIndex]) / sf;
             }
             for (var i = 0; i < ppm.Length; i++)
@@ -382,28 +492,86 @@ public static class JcampReader
             return ppm;
         }
 
-        /// <summary>The point and shift that anchor a Hz axis: ##.SHIFT REFERENCE=, else a private $OFFSET (ppm of the first point).</summary>
+        /// <summary>
+        /// Some older instruments number the points from 0 in ##.SHIFT REFERENCE=. The standard numbers them from 1, so
+        /// point 0 is read as the first point only when FIRSTX (Hz from 0 ppm) puts the first point at the stated shift.
+        /// </summary>
+        private int PointZero(double[] x, double sf, double shift)
+        {
+            var r = _header[".SHIFTREFERENCE"];
+            var firstPpm = x[0] / sf;
+            var pointPpm = x.Length > 1 ? Math.Abs(x[1] - x[0]) / sf : 0;
+            if (Math.Abs(firstPpm - shift) > pointPpm + 1e-9 * Math.Abs(shift))
+                throw new SpectrumFileException(path, r.Line,
+                    $"##.SHIFT REFERENCE={r.Value} names point 0, but points are numbered from 1, and FIRSTX puts the first point at {G(firstPpm)} ppm, " +
+                    $"not {G(shift)}: correct the point number (1 for the first point) or FIRSTX");
+            warnings.Add($"line {r.Line}: ##.SHIFT REFERENCE= names point 0 (points are numbered from 1); FIRSTX agrees that the first point is at {G(shift)} ppm, so it was read as point 1");
+            return 0;
+        }
+
+        /// <summary>The point and shift that anchor a Hz axis: ##.SHIFT REFERENCE= (point -1 for a point 0 still to be checked), else a private $OFFSET (ppm of the first point).</summary>
         private (int Index, double Ppm, string? How) Reference(int n)
         {
-            if (_header.TryGetValue(".SHIFTREFERENCE", out var r))
+            if (ShiftReference() is { } r)
             {
-                // "INTERNAL, CDCl3, 1, 7.26": type, compound, point number (from 1), shift in ppm.
-                var parts = r.Value.Trim('(', ')', ' ').Split(',', StringSplitOptions.TrimEntries);
-                if (parts.Length < 4
-                    || !int.TryParse(parts[^2], NumberStyles.Integer, CultureInfo.InvariantCulture, out var point)
-                    || !double.TryParse(parts[^1], NumberStyles.Float, CultureInfo.InvariantCulture, out var shift)
-                    || !double.IsFinite(shift))
+                if (r.Point > n)
                     throw new SpectrumFileException(path, r.Line,
-                        $"##.SHIFT REFERENCE={r.Value}: expected 'INTERNAL or EXTERNAL, compound, point number, shift in ppm', e.g. 'INTERNAL, TMS, 1, 0.0'");
-                if (point < 1 || point > n)
-                    throw new SpectrumFileException(path, r.Line,
-                        $"##.SHIFT REFERENCE= names point {point}, outside the trace's points 1 to {n}");
-                return (point - 1, shift, ".SHIFT REFERENCE");
+                        $"##.SHIFT REFERENCE= names point {r.Point}, outside the trace's points 1 to {n}");
+                return (r.Point - 1, r.Ppm, ".SHIFT REFERENCE");
             }
             // $OFFSET, written by some instrument exports, is (from memory of such files) the ppm of the first point.
             if (_header.TryGetValue("$OFFSET", out var o))
                 return (0, ParseNumber(o.Value, o), "$OFFSET");
             return (0, 0, null);
+        }
+
+        /// <summary>##.SHIFT REFERENCE= as (point number as written, shift in ppm, line), or null when absent.</summary>
+        private (int Point, double Ppm, int Line)? ShiftReference()
+        {
+            if (!_header.TryGetValue(".SHIFTREFERENCE", out var r)) return null;
+            // "INTERNAL, CDCl3, 1, 7.26": type, compound, point number (from 1), shift in ppm.
+            var parts = r.Value.Trim('(', ')', ' ').Split(',', StringSplitOptions.TrimEntries);
+            if (parts.Length < 4
+                || !int.TryParse(parts[^2], NumberStyles.Integer, CultureInfo.InvariantCulture, out var point)
+                || !double.TryParse(parts[^1], NumberStyles.Float, CultureInfo.InvariantCulture, out var shift)
+                || !double.IsFinite(shift))
+                throw new SpectrumFileException(path, r.Line,
+                    $"##.SHIFT REFERENCE={r.Value}: expected 'INTERNAL or EXTERNAL, compound, point number, shift in ppm', e.g. 'INTERNAL, TMS, 1, 0.0'");
+            if (point < 0)
+                throw new SpectrumFileException(path, r.Line, $"##.SHIFT REFERENCE= names point {point}; points are numbered from 1");
+            return (point, shift, r.Line);
+        }
+
+        /// <summary>
+        /// For an FID, the shift reference names a point of the spectrum made from it; point 1 is the high-frequency edge of
+        /// the spectral window. Another point is placed on a spectrum of as many points as the FID, with a warning.
+        /// </summary>
+        private double? FidReference(int n, double dwell)
+        {
+            if (ShiftReference() is not { } r)
+            {
+                warnings.Add("the FID has no ##.SHIFT REFERENCE=: the ppm axis is relative to the window's centre; set a known line to its shift");
+                return null;
+            }
+            if (r.Point == 0)
+            {
+                warnings.Add($"line {r.Line}: ##.SHIFT REFERENCE= names point 0 (points are numbered from 1); it was read as point 1, the window's high-frequency edge");
+                return r.Ppm;
+            }
+            if (r.Point == 1) return r.Ppm;
+            var observe = ObserveFrequency(required: true)!.Value;
+            warnings.Add($"line {r.Line}: ##.SHIFT REFERENCE= names point {r.Point} of the spectrum; it was placed on a spectrum of {n} points (the FID's size)");
+            // Point p lies (p - 1) SW / n below the high-frequency edge.
+            return r.Ppm + (r.Point - 1) / (dwell * n) / observe;
+        }
+
+        /// <summary>The digital-filter delay in points when the file states it (private ##$GRPDLY=, positive), else null.</summary>
+        private double? StatedFilterDelay(int n)
+        {
+            // Some exports keep the filter's group delay as ##$GRPDLY= in points (from memory of such files); -1 means "not used".
+            if (!_header.TryGetValue("$GRPDLY", out var r)) return null;
+            var d = ParseNumber(r.Value, r);
+            return d > 0 && d < n / 2.0 ? d : null;
         }
 
         private double? ObserveFrequency(bool required)
@@ -521,11 +689,22 @@ public static class JcampReader
         private static Dictionary<string, Ldr> HeaderOf(JcampBlock block, List<string> warnings)
         {
             var header = new Dictionary<string, Ldr>();
+            // Instrument exports repeat their private ##$ labels (one per parameter set); one line says so, not one per label.
+            var privateRepeats = new List<Ldr>();
             foreach (var r in block.Records)
             {
                 if (r.Label == "NTUPLES") break;
-                if (!header.TryAdd(r.Label, r) && r.Label is not ("XYDATA" or "XYPOINTS" or "PEAKTABLE"))
-                    warnings.Add($"line {r.Line}: ##{r.RawLabel}= repeats the label of line {header[r.Label].Line}; the first was used");
+                if (header.TryAdd(r.Label, r) || r.Label is "XYDATA" or "XYPOINTS" or "PEAKTABLE") continue;
+                if (r.Label.StartsWith('$')) privateRepeats.Add(r);
+                else warnings.Add($"line {r.Line}: ##{r.RawLabel}= repeats the label of line {header[r.Label].Line}; the first was used");
+            }
+            if (privateRepeats.Count > 0)
+            {
+                var labels = privateRepeats.Select(r => r.Label).Distinct().ToList();
+                var first = privateRepeats[0];
+                warnings.Add($"{labels.Count} private ##$ label(s) appear more than once ({privateRepeats.Count} repeats, the first ##{first.RawLabel}= at line {first.Line}, " +
+                    $"first given at line {header[first.Label].Line}); the first value of each was used: " +
+                    string.Join(", ", labels.Take(8)) + (labels.Count > 8 ? ", ..." : ""));
             }
             return header;
         }

@@ -62,7 +62,7 @@ public sealed class SpectrumFilesTests : IDisposable
         var root = json.RootElement;
 
         Assert.Equal(
-            ["format", "form", "points", "ppm_first", "ppm_last", "hz_first", "hz_last", "observe_mhz", "nucleus", "y_min", "y_max", "warnings"],
+            ["format", "form", "points", "ppm_first", "ppm_last", "hz_first", "hz_last", "observe_mhz", "nucleus", "y_min", "y_max", "warnings", "kind", "processing", "reference_ppm_shift"],
             root.EnumerateObject().Select(p => p.Name));
         Assert.Equal(1001, root.GetProperty("points").GetInt32());
         Assert.Equal(10.0, root.GetProperty("ppm_first").GetDouble(), 1e-12);

@@ -48,7 +48,7 @@ public sealed record FitSetupRecord
     internal static FitSetupRecord From(SpectrumFitProblem problem, ParameterLayout layout, SpectrumFitOptions options) => new()
     {
         Traces = problem.Data.Select(d => new TraceSetupRecord(d.Trace.Origin.Source, d.Trace.Origin.Format, d.ObserveMHz, d.Regions,
-            d.RegionsAutomatic, d.Exclude, d.Processing)).ToArray(),
+            d.RegionsAutomatic, d.Exclude, d.Trace.Origin.Processing?.Describe().ToArray() ?? d.Processing)).ToArray(),
         Parameters = layout.Parameters.Select((p, i) =>
         {
             var f = layout.FreeIndexOf(i);

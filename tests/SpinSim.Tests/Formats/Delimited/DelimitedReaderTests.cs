@@ -81,13 +81,47 @@ public class DelimitedReaderTests
     }
 
     [Fact]
-    public void Decimal_comma_unstated_gets_a_hint()
+    public void Decimal_comma_unstated_is_detected_with_a_warning()
     {
-        var e = Assert.Throws<SpectrumFileException>(() =>
-            DelimitedReader.Parse("ppm;intensity\n7,26;10,5\n", "komma.csv"));
+        // Semicolon columns cannot hold a comma separator, so "7,26" is a number with a decimal comma (common practice, no source).
+        var t = DelimitedReader.Parse("ppm;intensity\n7,26;10,5\n7,25;11\n", "komma.csv");
+
+        Assert.Equal([7.26, 7.25], t.ShiftPpm);
+        Assert.Equal([10.5, 11.0], t.Intensity);
+        Assert.Contains(t.Origin.Warnings, w => w.Contains("decimal comma"));
+    }
+
+    [Fact]
+    public void Comma_columns_of_whole_numbers_name_the_options()
+    {
+        var e = Assert.Throws<SpectrumFileException>(() => DelimitedReader.Parse("ppm,intensity\n7,26,10,5\n", "komma.csv"));
 
         Assert.Equal(2, e.Line);
-        Assert.Contains("decimal mark a comma", e.Problem);
+        Assert.Contains("--decimal-comma", e.Problem);
+        Assert.Contains("--separator", e.Problem);
+    }
+
+    [Fact]
+    public void X_unit_is_read_from_the_header()
+    {
+        // 400 MHz: 2904 Hz is 7.26 ppm (nu = delta x SF; exact arithmetic).
+        var t = DelimitedReader.Parse("freq_Hz,intensity\n2904,1\n2900,2\n", "hz.csv", new DelimitedOptions { ObserveMHz = 400 });
+
+        Assert.Equal(7.26, t.ShiftPpm[0], 12);
+        Assert.Equal(7.25, t.ShiftPpm[1], 12);
+        Assert.Contains(t.Origin.Warnings, w => w.Contains("Hz"));
+        var e = Assert.Throws<SpectrumFileException>(() => DelimitedReader.Parse("Hz,intensity\n2904,1\n", "hz.csv"));
+        Assert.Contains("observe", e.Problem);
+    }
+
+    [Fact]
+    public void Point_index_column_is_skipped()
+    {
+        var t = DelimitedReader.Parse("index,ppm,intensity\n0,7.30,1\n1,7.29,2\n2,7.28,3\n3,7.27,4\n", "indexed.csv");
+
+        Assert.Equal([7.30, 7.29, 7.28, 7.27], t.ShiftPpm);
+        Assert.Equal([1.0, 2, 3, 4], t.Intensity);
+        Assert.Contains(t.Origin.Warnings, w => w.Contains("counts points"));
     }
 
     [Fact]
