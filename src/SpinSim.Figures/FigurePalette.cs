@@ -38,6 +38,9 @@ public static class FigurePalette
     /// <summary>Zero lines and other guides that should recede.</summary>
     public static OxyColor Guide { get; } = OxyColor.FromRgb(0x99, 0x99, 0x99);
 
+    /// <summary>Shading of excluded ranges: light enough that the trace over it stays black.</summary>
+    public static OxyColor Excluded { get; } = OxyColor.FromRgb(0xE4, 0xE4, 0xE4);
+
     /// <summary>
     /// Colours for several traces in one figure, in order; yellow is left out because it vanishes on white.
     /// Stacked traces are told apart by position and label, so colour is a help, not the only cue.

@@ -33,10 +33,11 @@ public static class SimulateCommand
         var phaseError = new Option<double>("--phase-error") { Description = "Mix in dispersion as a zero-order phase error of this many degrees, -180 to 180 (synthetic data for demos and tests)", HelpName = "DEG" };
         var sticks = new Option<bool>("--sticks") { Description = "In the figure, draw the transitions as sticks below the trace" };
         var labels = new Option<bool>("--labels") { Description = "In the figure, label the nuclei at their shifts" };
+        var solvent = new Option<string?>("--solvent") { Description = "Solvent named in the data line, e.g. CDCl3" };
         var figure = new FigureChoice();
         var command = new Command("simulate", "Simulate the spectrum of a spin system at a field: exact transitions, trace and integrals")
         {
-            file, field, lines, spectrum, jcampForm, noise, seed, phaseError, sticks, labels,
+            file, field, lines, spectrum, jcampForm, noise, seed, phaseError, sticks, labels, solvent,
         };
         figure.AddTo(command);
         engine.AddTo(command);
@@ -91,6 +92,7 @@ public static class SimulateCommand
             if (simulated.NeglectedTailFraction > 0)
                 io.Detail($"lines evaluated within +-{settings.CutoffFwhm} widths; the Lorentzian tails left out hold {simulated.NeglectedTailFraction:P2} of each line's area");
 
+            io.Out.WriteLine($"data line: {SpinSim.Core.Reporting.NmrDataLine.Format(system, new SpinSim.Core.Reporting.DataLineOptions { Solvent = parse.GetValue(solvent) })}");
             if (figurePath is not null)
             {
                 var model = SpinSim.Figures.Plots.SpectrumFigure.Simulated(simulated.Trace,

@@ -36,12 +36,12 @@ public static class ParameterDisplay
     public static string Label(FittedParameter p, int traces = 1)
     {
         ArgumentNullException.ThrowIfNull(p);
-        var nuclei = p.Nuclei ?? [];
+        var nuclei = (p.Nuclei ?? []).Select(Typography.Primes).ToArray();
         var label = p.Kind switch
         {
-            ParameterKind.ShiftPpm when nuclei.Count == 1 => $"δ({nuclei[0]})/ppm",
-            ParameterKind.JHz when nuclei.Count == 2 => $"J({nuclei[0]},{nuclei[1]})/Hz",
-            ParameterKind.LinewidthHz => nuclei.Count == 1 ? $"width({nuclei[0]})/Hz" : "width/Hz",
+            ParameterKind.ShiftPpm when nuclei.Length == 1 => $"δ({nuclei[0]})/ppm",
+            ParameterKind.JHz when nuclei.Length == 2 => $"J({nuclei[0]},{nuclei[1]})/Hz",
+            ParameterKind.LinewidthHz => nuclei.Length == 1 ? $"width({nuclei[0]})/Hz" : "width/Hz",
             ParameterKind.Scale => "scale",
             ParameterKind.Baseline => $"baseline, {BaselineTerm(p.Name)}",
             ParameterKind.OffsetHz => "offset/Hz",
