@@ -46,4 +46,7 @@ public static class FigurePalette
     /// Stacked traces are told apart by position and label, so colour is a help, not the only cue.
     /// </summary>
     public static IReadOnlyList<OxyColor> Sequence { get; } = [Blue, Vermillion, BluishGreen, ReddishPurple, Black, Orange, SkyBlue];
+
+    /// <summary>Line styles for several traces, in the same order as <see cref="Sequence"/>, so they differ in grey print too.</summary>
+    public static IReadOnlyList<LineStyle> StyleSequence { get; } = [LineStyle.Solid, LineStyle.Dash, LineStyle.Dot, LineStyle.DashDot, LineStyle.LongDash, LineStyle.DashDashDot, LineStyle.LongDashDot];
 }

@@ -122,6 +122,26 @@ public static class FigureRenderer
             var family = element.Attribute("font-family");
             if (family is not null && !family.Value.Contains("sans-serif", StringComparison.Ordinal))
                 family.Value = family.Value + ", sans-serif";
+            if (element.Name.LocalName == "text") PortableText(element);
+        }
+    }
+
+    // Skia writes each string between newlines and tabs with one x per glyph and a trailing comma ("x=\"-3.8, \"").
+    // Renderers differ on both: some keep the whitespace as a leading space that takes the first x, some reject the
+    // trailing comma. The string trimmed, and the lists cleaned (one x per character, else the first only), read the same
+    // everywhere; the start stays where Skia put it.
+    private static void PortableText(XElement text)
+    {
+        var content = text.Value.Trim();
+        text.RemoveNodes();
+        text.Add(new XText(content));
+        var characters = System.Globalization.StringInfo.ParseCombiningCharacters(content).Length;
+        foreach (var name in new[] { "x", "y" })
+        {
+            var attribute = text.Attribute(name);
+            if (attribute is null) continue;
+            var values = attribute.Value.Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries);
+            attribute.Value = values.Length == characters && name == "x" ? string.Join(" ", values) : values.FirstOrDefault() ?? "0";
         }
     }
 

@@ -20,11 +20,14 @@ internal static class FigureStyle
     /// <summary>A white model with the bundled font at the options' size and the given default title.</summary>
     public static PlotModel NewModel(FigureOptions options, string defaultTitle)
     {
-        options.Resolve(); // refuse bad options when the figure is built, not only when it is drawn
+        var size = options.Resolve(); // refuse bad options when the figure is built, not only when it is drawn
         var font = FontUnits(options);
+        // A title wider than the figure is broken into lines rather than cut at the edges.
+        var title = string.Join("\n", BundledFont.Wrap(options.Title ?? defaultTitle ?? "", font * 1.15, size.WidthUnits - 2 * font));
         return new PlotModel
         {
-            Title = options.Title ?? defaultTitle,
+            Title = title,
+            TitleHorizontalAlignment = TitleHorizontalAlignment.CenteredWithinView,
             TitleFontSize = font * 1.15,
             TitleFontWeight = FontWeights.Bold,
             DefaultFont = BundledFont.FamilyName,
@@ -163,6 +166,10 @@ internal static class FigureStyle
             };
         }
     }
+
+    /// <summary>Tick labels of <paramref name="axis"/> with the true minus sign.</summary>
+    public static void TrueMinusLabels(Axis axis) =>
+        axis.LabelFormatter = v => Typography.TrueMinus(v.ToString("0.###", System.Globalization.CultureInfo.InvariantCulture));
 
     /// <summary>The smallest of 1, 2, 5 x 10^k not below <paramref name="atLeast"/>.</summary>
     public static double NiceStep(double atLeast)

@@ -46,7 +46,9 @@ public static class SpectrumFigure
         var model = FigureStyle.NewModel(options, $"Simulated {FigureStyle.NucleusLabel(trace.Nucleus)} spectrum{field}");
 
         var (minPpm, maxPpm) = FigureStyle.Range(trace.ShiftPpm);
-        model.Axes.Add(FigureStyle.PpmAxis(trace.Nucleus, minPpm, maxPpm));
+        var ppmAxis = FigureStyle.PpmAxis(trace.Nucleus, minPpm, maxPpm);
+        model.Axes.Add(ppmAxis);
+        FigureStyle.SetTicks([(ppmAxis, size.WidthUnits * 0.9)], font);
 
         // Sticks get the lower quarter of the plot height, the trace the rest.
         var hasSticks = sticks.Count > 0;
@@ -92,7 +94,7 @@ public static class SpectrumFigure
             model.Annotations.Add(new TextAnnotation
             {
                 Text = p.Text,
-                TextPosition = new DataPoint(p.ShiftPpm, p.PeakTop),
+                TextPosition = new DataPoint(p.LabelPpm, p.PeakTop),
                 Offset = new ScreenVector(0, -(font * 0.4 + p.Row * lineHeight)),
                 TextHorizontalAlignment = HorizontalAlignment.Center,
                 TextVerticalAlignment = VerticalAlignment.Bottom,
@@ -120,11 +122,16 @@ public static class SpectrumFigure
     public static IReadOnlyList<StickLine> SticksFrom(LineList lines) =>
         lines.Lines.Select(l => new StickLine(l.ShiftPpm, l.Intensity)).ToArray();
 
-    /// <summary>One label per entry of the observed isotope, its id at its shift.</summary>
+    /// <summary>
+    /// One label per resonance of the observed isotope: entries at the same shift (the mirrored HA and HA′ of AA′BB′, or
+    /// other chemically equivalent entries) share one label, "HA/HA′", written with primes.
+    /// </summary>
     public static IReadOnlyList<ShiftLabel> LabelsFrom(SpinSystem system) =>
-        system.Nuclei.Where(n => n.Isotope == system.Observed).Select(n => new ShiftLabel(n.Id, n.Shift.Value)).ToArray();
+        system.Nuclei.Where(n => n.Isotope == system.Observed).GroupBy(n => n.Shift.Value)
+            .Select(g => new ShiftLabel(string.Join("/", g.Select(n => Core.Reporting.Typography.Primes(n.Id))), g.Key)).ToArray();
 
-    private sealed record PlacedLabel(string Text, double ShiftPpm, double PeakTop, int Row);
+    // LabelPpm: where the text is centred, moved in from the edges so the whole label stays inside the plot.
+    private sealed record PlacedLabel(string Text, double ShiftPpm, double LabelPpm, double PeakTop, int Row);
 
     // Greedy rows from left to right on the page (high ppm first): a label takes the lowest row whose last
     // label ends before it starts. The estimate of the text width in ppm only has to be roughly right.
@@ -139,7 +146,8 @@ public static class SpectrumFigure
             var row = rowEnds.FindIndex(end => end > label.ShiftPpm + halfWidth);
             if (row < 0) { row = rowEnds.Count; rowEnds.Add(0); }
             rowEnds[row] = label.ShiftPpm - halfWidth;
-            placed.Add(new PlacedLabel(label.Text, label.ShiftPpm, LocalMaximum(trace, label.ShiftPpm, Math.Max(halfWidth, 2 * ppmPerUnit)), row));
+            var inside = Math.Clamp(label.ShiftPpm, minPpm + halfWidth, Math.Max(minPpm + halfWidth, maxPpm - halfWidth));
+            placed.Add(new PlacedLabel(label.Text, label.ShiftPpm, inside, LocalMaximum(trace, label.ShiftPpm, Math.Max(halfWidth, 2 * ppmPerUnit)), row));
         }
         return placed;
     }
