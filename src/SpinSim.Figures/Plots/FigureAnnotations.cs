@@ -47,19 +47,22 @@ internal sealed class RowLabelAnnotation : MarginAnnotation
     private readonly string _text;
     private readonly double _font;
 
-    public RowLabelAnnotation(string text, string xAxisKey, string yAxisKey, bool top, double font)
+    public RowLabelAnnotation(string text, string xAxisKey, string yAxisKey, double font)
     {
         _text = text;
         _font = font;
         XAxisKey = xAxisKey;
         YAxisKey = yAxisKey;
-        _ = top;
     }
 
     public override void Render(IRenderContext rc)
     {
         var area = PlotModel.PlotArea;
         var y = YAxis!.Transform(YAxis.ActualMaximum);
+        // A white ground keeps the label legible where a trace runs under it; it covers only the label's own box.
+        var width = BundledFont.MeasureWidth(_text, _font);
+        rc.DrawRectangle(new OxyRect(area.Left + _font * 0.15, y, width + _font * 0.3, BundledFont.LineHeight(_font) * 0.95),
+            OxyColors.White, OxyColors.Undefined, 0, EdgeRenderingMode.Automatic);
         rc.DrawText(new ScreenPoint(area.Left + _font * 0.3, y), _text, PlotModel.TextColor, PlotModel.DefaultFont, _font,
             FontWeights.Normal, 0, HorizontalAlignment.Left, VerticalAlignment.Top);
     }

@@ -214,9 +214,9 @@ public static class FitFigure
         }
 
         var residualLabel = factor == 1 ? "residual" : $"residual ×{factor:0.###}";
-        model.Annotations.Add(new RowLabelAnnotation(residualLabel, PanelAxis(0), ResidualAxis(t), top: true, font * 0.85));
+        model.Annotations.Add(new RowLabelAnnotation(residualLabel, PanelAxis(0), ResidualAxis(t), font * 0.85));
         if (!string.IsNullOrEmpty(trace.Label))
-            model.Annotations.Add(new RowLabelAnnotation(trace.Label, PanelAxis(0), MainAxis(t), top: true, font));
+            model.Annotations.Add(new RowLabelAnnotation(trace.Label, PanelAxis(0), MainAxis(t), font));
     }
 
     // Regions clipped to the data, overlapping ones merged, from high ppm to low; one panel over all data without regions.
