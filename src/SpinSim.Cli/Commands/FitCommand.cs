@@ -222,7 +222,7 @@ public static class FitCommand
         ("iterations (final run)", r.Iterations.ToString(CultureInfo.InvariantCulture)),
         ("starts reaching the best optimum", $"{r.StartsAtBest} of {r.Starts}"),
         ("starts that joined another's path", r.StartsJoined.ToString(CultureInfo.InvariantCulture)),
-        ("block bootstrap", r.Bootstrap is { } b ? $"{b.Converged} of {b.Replicates} refits, blocks of {b.BlockPoints} points (errors in brackets)" : "not run"),
+        ("block bootstrap", r.Bootstrap is { } b ? $"{b.Converged} of {b.Replicates} refits, blocks of {b.BlockPoints} points (the ± column)" : "not run"),
     ];
 
     private static void PrintReport(TextWriter o, SpectrumFitResult r, string systemPath, IReadOnlyList<string> data, string reportLine)
