@@ -157,21 +157,30 @@ public static class FigureRenderer
             EncodingQuality = 101, // lossless for anything Skia has to rasterise
             PdfA = false,
         };
+        // A first pass collects the characters drawn, so that the PDF embeds the font cut to them (FontSubset).
+        var used = new HashSet<int>();
+        using (var bitmap = new SKBitmap(1, 1))
+        using (var scratch = new SKCanvas(bitmap))
+            Draw(model, scratch, OxyPlot.SkiaSharp.RenderTarget.VectorGraphic, 1f, size.WidthUnits, size.HeightUnits, codepoints: used);
+        using var subset = FontSubset.Create(BundledFont.FontBytes(), used);
         using var skStream = new SKManagedWStream(output);
         using var document = SKDocument.CreatePdf(skStream, metadata);
         var canvas = document.BeginPage((float)(size.WidthInches * pointsPerInch), (float)(size.HeightInches * pointsPerInch));
         if (model.Background.IsVisible()) canvas.Clear(ToSk(model.Background));
         // PDF draws in points (1/72 inch); OxyPlot lays out in 1/96 inch.
         Draw(model, canvas, OxyPlot.SkiaSharp.RenderTarget.VectorGraphic, pointsPerInch / (float)FigureSize.UnitsPerInch,
-            size.WidthUnits, size.HeightUnits);
+            size.WidthUnits, size.HeightUnits, subset);
         document.EndPage();
         document.Close();
     }
 
     private static void Draw(PlotModel model, SKCanvas canvas, OxyPlot.SkiaSharp.RenderTarget target, float dpiScale,
-        double widthUnits, double heightUnits)
+        double widthUnits, double heightUnits, SKTypeface? typeface = null, HashSet<int>? codepoints = null)
     {
-        using var context = new BundledFontRenderContext { RenderTarget = target, SkCanvas = canvas, DpiScale = dpiScale, UseTextShaping = false };
+        using var context = new BundledFontRenderContext
+        {
+            RenderTarget = target, SkCanvas = canvas, DpiScale = dpiScale, UseTextShaping = false, Typeface = typeface, Codepoints = codepoints,
+        };
         ((IPlotModel)model).Render(context, new OxyRect(0, 0, widthUnits, heightUnits));
         if (context.Failure is { } failure)
             throw new InvalidOperationException($"the figure could not be drawn: {failure}");

@@ -63,15 +63,24 @@ public static class BundledFont
         return paint.FontSpacing;
     }
 
-    internal static SKPaint CreatePaint(double fontSize, bool bold) => new()
+    internal static SKPaint CreatePaint(double fontSize, bool bold, SKTypeface? typeface = null) => new()
     {
-        Typeface = Typeface,
+        Typeface = typeface ?? Typeface,
         TextSize = (float)fontSize,
         IsAntialias = true,
         SubpixelText = true,
         // Only the regular face is shipped; emboldening it is enough for titles and table headers.
         FakeBoldText = bold,
     };
+
+    /// <summary>The font file's bytes, for cutting a subset (<see cref="FontSubset"/>).</summary>
+    internal static byte[] FontBytes()
+    {
+        using var stream = OpenResource(FontResource);
+        using var copy = new MemoryStream();
+        stream.CopyTo(copy);
+        return copy.ToArray();
+    }
 
     private static SKTypeface Load()
     {
