@@ -14,6 +14,12 @@ public sealed record StickLine(double ShiftPpm, double Intensity);
 /// <summary>A label written above the spectrum at a shift, naming the nucleus or set that resonates there.</summary>
 public sealed record ShiftLabel(string Text, double ShiftPpm);
 
+/// <summary>
+/// A range of the trace drawn again above itself, scaled up by <see cref="Factor"/> (chosen from 2, 5, 10, 20 ... when
+/// null) so a small multiplet can be read, and labelled "×N".
+/// </summary>
+public sealed record VerticalExpansion(double HighPpm, double LowPpm, double? Factor = null);
+
 /// <summary>A simulated spectrum: the trace, optionally the transitions as sticks below it, and labels at the shifts.</summary>
 public static class SpectrumFigure
 {
@@ -26,8 +32,9 @@ public static class SpectrumFigure
     /// neighbours would overlap. Intensities are in arbitrary units, so no intensity axis is drawn.
     /// </summary>
     /// <exception cref="ArgumentException">A stick or label with a non-finite value, or invalid options.</exception>
+    /// <param name="expansions">Ranges drawn again, scaled up, above the trace (insets "×N"); none when null.</param>
     public static PlotModel Simulated(SpectrumTrace trace, IReadOnlyList<StickLine>? sticks, IReadOnlyList<ShiftLabel>? labels,
-        FigureOptions options)
+        FigureOptions options, IReadOnlyList<VerticalExpansion>? expansions = null)
     {
         ArgumentNullException.ThrowIfNull(trace);
         ArgumentNullException.ThrowIfNull(options);
@@ -109,6 +116,8 @@ public static class SpectrumFigure
             });
 
         // One trace needs no legend; with sticks the legend says which is which.
+        foreach (var expansion in expansions ?? []) AddExpansion(model, trace, expansion, yMax, font);
+
         if (hasSticks) FigureLegend.AddAbove(model, font);
         return model;
     }
@@ -117,6 +126,48 @@ public static class SpectrumFigure
     public static void Render(SpectrumTrace trace, IReadOnlyList<StickLine>? sticks, IReadOnlyList<ShiftLabel>? labels,
         FigureOptions options, FigureFormat format, Stream output) =>
         FigureRenderer.Render(Simulated(trace, sticks, labels, options), format, options, output);
+
+    // The range again, scaled by N and lifted to 35 % of the tallest point so it floats over the baseline of the trace;
+    // N by default brings the range's tallest point to about 55 % of the trace's (1-2-5 steps, rounded down).
+    private static void AddExpansion(PlotModel model, SpectrumTrace trace, VerticalExpansion expansion, double yMax, double font)
+    {
+        var high = Math.Max(expansion.HighPpm, expansion.LowPpm);
+        var low = Math.Min(expansion.HighPpm, expansion.LowPpm);
+        var inside = Enumerable.Range(0, trace.Count).Where(i => trace.ShiftPpm[i] >= low && trace.ShiftPpm[i] <= high).ToArray();
+        if (inside.Length < 2)
+            throw new ArgumentException($"the expansion {high}..{low} ppm holds fewer than 2 points of the trace; give a range inside it", nameof(expansion));
+        var local = inside.Max(i => trace.Intensity[i]);
+        var factor = expansion.Factor ?? (local > 0 ? RoundedDown(0.55 * yMax / local) : 1);
+        if (!(factor >= 1 && double.IsFinite(factor))) throw new ArgumentException($"an expansion factor must be at least 1, got {factor}", nameof(expansion));
+        var lift = 0.35 * yMax;
+        var points = inside.Select(i => (Ppm: trace.ShiftPpm[i], Y: lift + trace.Intensity[i] * factor)).ToArray();
+        model.Series.Add(FigureStyle.Line(FigureStyle.Points(points.Select(p => p.Ppm).ToArray(), points.Select(p => p.Y).ToArray()),
+            FigurePalette.Simulated, LineStyle.Solid, FigureStyle.TraceThickness * 0.8, TraceAxis, ""));
+        model.Series[^1].RenderInLegend = false;
+        model.Annotations.Add(new TextAnnotation
+        {
+            Text = string.Create(System.Globalization.CultureInfo.InvariantCulture, $"×{factor:0.##}"),
+            TextPosition = new DataPoint(high, lift + local * factor),
+            TextHorizontalAlignment = HorizontalAlignment.Left,
+            TextVerticalAlignment = VerticalAlignment.Bottom,
+            StrokeThickness = 0,
+            Background = OxyColors.Undefined,
+            TextColor = FigurePalette.Ink,
+            FontSize = font * 0.9,
+            XAxisKey = "ppm",
+            YAxisKey = TraceAxis,
+        });
+    }
+
+    // The largest of 1, 2, 5 x 10^k not above x, and at least 1.
+    private static double RoundedDown(double x)
+    {
+        if (!(x > 1) || !double.IsFinite(x)) return 1;
+        var decade = Math.Pow(10, Math.Floor(Math.Log10(x)));
+        foreach (var m in new[] { 5.0, 2.0, 1.0 })
+            if (m * decade <= x * (1 + 1e-9)) return m * decade;
+        return decade;
+    }
 
     /// <summary>Sticks for the lines of an engine result.</summary>
     public static IReadOnlyList<StickLine> SticksFrom(LineList lines) =>
