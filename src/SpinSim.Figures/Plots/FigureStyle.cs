@@ -171,6 +171,16 @@ internal static class FigureStyle
     public static void TrueMinusLabels(Axis axis) =>
         axis.LabelFormatter = v => Typography.TrueMinus(v.ToString("0.###", System.Globalization.CultureInfo.InvariantCulture));
 
+    /// <summary>The largest of 1, 2, 5 x 10^k not above <paramref name="atMost"/>, and at least 1 (expansion factors).</summary>
+    public static double NiceStepBelow(double atMost)
+    {
+        if (!(atMost > 1) || !double.IsFinite(atMost)) return 1;
+        var decade = Math.Pow(10, Math.Floor(Math.Log10(atMost)));
+        foreach (var m in new[] { 5.0, 2.0, 1.0 })
+            if (m * decade <= atMost * (1 + 1e-9)) return m * decade;
+        return decade;
+    }
+
     /// <summary>The smallest of 1, 2, 5 x 10^k not below <paramref name="atLeast"/>.</summary>
     public static double NiceStep(double atLeast)
     {

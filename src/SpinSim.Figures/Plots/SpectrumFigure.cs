@@ -137,7 +137,7 @@ public static class SpectrumFigure
         if (inside.Length < 2)
             throw new ArgumentException($"the expansion {high}..{low} ppm holds fewer than 2 points of the trace; give a range inside it", nameof(expansion));
         var local = inside.Max(i => trace.Intensity[i]);
-        var factor = expansion.Factor ?? (local > 0 ? RoundedDown(0.55 * yMax / local) : 1);
+        var factor = expansion.Factor ?? (local > 0 ? FigureStyle.NiceStepBelow(0.55 * yMax / local) : 1);
         if (!(factor >= 1 && double.IsFinite(factor))) throw new ArgumentException($"an expansion factor must be at least 1, got {factor}", nameof(expansion));
         var lift = 0.35 * yMax;
         var points = inside.Select(i => (Ppm: trace.ShiftPpm[i], Y: lift + trace.Intensity[i] * factor)).ToArray();
@@ -157,16 +157,6 @@ public static class SpectrumFigure
             XAxisKey = "ppm",
             YAxisKey = TraceAxis,
         });
-    }
-
-    // The largest of 1, 2, 5 x 10^k not above x, and at least 1.
-    private static double RoundedDown(double x)
-    {
-        if (!(x > 1) || !double.IsFinite(x)) return 1;
-        var decade = Math.Pow(10, Math.Floor(Math.Log10(x)));
-        foreach (var m in new[] { 5.0, 2.0, 1.0 })
-            if (m * decade <= x * (1 + 1e-9)) return m * decade;
-        return decade;
     }
 
     /// <summary>Sticks for the lines of an engine result.</summary>
