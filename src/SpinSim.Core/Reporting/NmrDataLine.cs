@@ -144,22 +144,29 @@ public static class NmrDataLine
         ArgumentNullException.ThrowIfNull(system);
         options ??= new DataLineOptions();
         var inv = CultureInfo.InvariantCulture;
-        var fields = options.FieldsMHz.Count > 0 ? options.FieldsMHz : [system.Observed.ObserveMHz(system.Field)];
-        var fieldText = fields.Count == 1
+        var fields = (options.FieldsMHz.Count > 0 ? options.FieldsMHz : [system.Observed.ObserveMHz(system.Field)]).Select(Nominal).Distinct().ToArray();
+        var fieldText = fields.Length == 1
             ? fields[0].ToString("0.#", inv) + " MHz"
-            : string.Join(", ", fields.Take(fields.Count - 1).Select(f => f.ToString("0.#", inv))) + " and " + fields[^1].ToString("0.#", inv) + " MHz";
+            : string.Join(", ", fields.Take(fields.Length - 1).Select(f => f.ToString("0.#", inv))) + " and " + fields[^1].ToString("0.#", inv) + " MHz";
         var header = string.IsNullOrWhiteSpace(options.Solvent) ? fieldText : $"{fieldText}, {options.Solvent.Trim()}";
         var text = new StringBuilder($"{Typography.Isotope(system.Observed.Symbol)} NMR ({header}): δ ");
         var parts = Groups(system, options).Select(g =>
         {
             var detail = $"{g.Multiplicity}, {g.Nuclei}{NucleusLetter(system.Observed.Symbol)}";
             if (g.Couplings.Count > 0)
-                detail += ", J = " + string.Join(", ", g.Couplings.Select(x => UncertainValue.Round(x, g.CouplingDecimals))) + " Hz";
-            return $"{UncertainValue.Round(g.ShiftPpm, g.ShiftDecimals)} ({detail})";
+                detail += ", J = " + string.Join(", ", g.Couplings.Select(x => Typography.TrueMinus(UncertainValue.Round(x, g.CouplingDecimals)))) + " Hz";
+            return $"{Typography.TrueMinus(UncertainValue.Round(g.ShiftPpm, g.ShiftDecimals))} ({detail})";
         });
         text.Append(string.Join(", ", parts)).Append('.');
-        return Typography.TrueMinus(text.ToString());
+        return text.ToString(); // true minus signs in the numbers only: a solvent such as DMSO-d6 keeps its hyphen
     }
+
+    /// <summary>
+    /// The spectrometer's nominal frequency as papers quote it: 399.78 MHz is a "400 MHz" instrument. To the nearest 10 MHz
+    /// from 100 MHz up, to the nearest 1 MHz below (benchtop 43, 60, 80 MHz) (common practice, no source).
+    /// </summary>
+    public static double Nominal(double observeMHz) =>
+        observeMHz >= 100 ? Math.Round(observeMHz / 10, MidpointRounding.AwayFromZero) * 10 : Math.Round(observeMHz, MidpointRounding.AwayFromZero);
 
     /// <summary>"d", "t", "q", "quint", "sext", "sept" for n equivalent partners, "m" beyond.</summary>
     public static string SplittingName(int partners) => partners >= 0 && partners < Names.Length ? Names[partners] : "m";

@@ -93,4 +93,13 @@ public sealed class NmrDataLineTests
         });
         Assert.Equal("¹H NMR (400 MHz): δ 4.123 (q, 2H, J = 7.1 Hz), 1.260 (t, 3H, J = 7.1 Hz).", line);
     }
+
+    [Fact]
+    public void Header_gives_the_nominal_field_and_the_solvent_as_written()
+    {
+        // A measured file states 399.782198 MHz: papers quote the instrument as 400 MHz; a hyphen in a solvent name stays a hyphen.
+        var ethyl = Make(399.782198, [new("OCH2", 4.12, 2), new("CH3", 1.26, 3)], [new("OCH2", "CH3", 7.1)]);
+        Assert.StartsWith("¹H NMR (400 MHz, DMSO-d6): δ 4.120 (q,", NmrDataLine.Format(ethyl, new DataLineOptions { Solvent = "DMSO-d6" }));
+        Assert.StartsWith("¹H NMR (43 MHz): δ", NmrDataLine.Format(ethyl.WithField(new FieldMHz(43.2))));
+    }
 }
