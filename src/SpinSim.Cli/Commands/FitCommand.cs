@@ -191,7 +191,7 @@ public static class FitCommand
     /// <summary>Every fitted trace with its field, the fitted regions and the excluded ranges, and the table rows.</summary>
     internal static FitFigureData FigureData(SpectrumFitResult result, IReadOnlyList<FitDataset> datasets, string title) =>
         new(result.Traces.Select(t => new FitFigureTrace(t.Measured, t.Model, t.Residual,
-                t.Measured.ObserveMHz is { } mhz ? string.Create(CultureInfo.InvariantCulture, $"{mhz:0.#} MHz") : "")).ToArray(),
+                t.Measured.ObserveMHz is { } mhz ? string.Create(CultureInfo.InvariantCulture, $"{NmrDataLine.Nominal(mhz):0.#} MHz") : "")).ToArray(),
             FitTable.Rows(result, trueMinus: true), title)
         {
             Regions = datasets.SelectMany(d => d.Regions).ToArray(),

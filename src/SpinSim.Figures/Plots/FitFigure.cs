@@ -122,7 +122,9 @@ public static class FitFigure
         if (data.ShowTable && shown.Count > 0)
         {
             var room = inner - above - axisSpace - MinPlotShare * size.HeightUnits;
-            var table = ParameterTableAnnotation.Layout(shown, note, font, SmallestTableFontScale, size.WidthUnits - 2 * model.Padding.Left, room);
+            // The table starts at the plot's left edge (padding plus the plot's left margin) and must end inside the right padding.
+            var tableWidth = size.WidthUnits - model.Padding.Left - model.Padding.Right - font * 1.5;
+            var table = ParameterTableAnnotation.Layout(shown, note, font, SmallestTableFontScale, tableWidth, room);
             if (table is not null)
             {
                 table.Origin = m => new ScreenPoint(m.PlotArea.Left, m.PlotArea.Bottom + axisSpace);

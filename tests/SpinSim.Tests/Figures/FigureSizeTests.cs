@@ -111,6 +111,8 @@ public sealed class FigureSizeTests
     [
         .. Enumerable.Range(0, spin).Select(i => new ParameterRow(i % 2 == 0 ? $"δ(H{i})/ppm" : $"J(H{i},H{i + 1})/Hz",
             i % 2 == 0 ? "7.352006(33)" : "\u221216.0989(20)", "", ParameterGroup.Spin)),
+        // Primes and a long tied label widen the label column, as a real AA′BB′ fit does.
+        new("J(HA′,HB′)/Hz (= J(HA,HB))", "8.4499(4)", "", ParameterGroup.Spin),
         new("width/Hz", "0.6496(8)", "", ParameterGroup.Width),
         new("scale", "0.9996(8)", "", ParameterGroup.Nuisance),
         new("phase/°", "\u22122.00(5)", "", ParameterGroup.Nuisance),
