@@ -38,9 +38,15 @@ public static class FigurePalette
     /// <summary>Zero lines and other guides that should recede.</summary>
     public static OxyColor Guide { get; } = OxyColor.FromRgb(0x99, 0x99, 0x99);
 
+    /// <summary>Shading of excluded ranges: light enough that the trace over it stays black.</summary>
+    public static OxyColor Excluded { get; } = OxyColor.FromRgb(0xE4, 0xE4, 0xE4);
+
     /// <summary>
     /// Colours for several traces in one figure, in order; yellow is left out because it vanishes on white.
     /// Stacked traces are told apart by position and label, so colour is a help, not the only cue.
     /// </summary>
     public static IReadOnlyList<OxyColor> Sequence { get; } = [Blue, Vermillion, BluishGreen, ReddishPurple, Black, Orange, SkyBlue];
+
+    /// <summary>Line styles for several traces, in the same order as <see cref="Sequence"/>, so they differ in grey print too.</summary>
+    public static IReadOnlyList<LineStyle> StyleSequence { get; } = [LineStyle.Solid, LineStyle.Dash, LineStyle.Dot, LineStyle.DashDot, LineStyle.LongDash, LineStyle.DashDashDot, LineStyle.LongDashDot];
 }

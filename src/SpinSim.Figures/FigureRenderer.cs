@@ -122,6 +122,26 @@ public static class FigureRenderer
             var family = element.Attribute("font-family");
             if (family is not null && !family.Value.Contains("sans-serif", StringComparison.Ordinal))
                 family.Value = family.Value + ", sans-serif";
+            if (element.Name.LocalName == "text") PortableText(element);
+        }
+    }
+
+    // Skia writes each string between newlines and tabs with one x per glyph and a trailing comma ("x=\"-3.8, \"").
+    // Renderers differ on both: some keep the whitespace as a leading space that takes the first x, some reject the
+    // trailing comma. The string trimmed, and the lists cleaned (one x per character, else the first only), read the same
+    // everywhere; the start stays where Skia put it.
+    private static void PortableText(XElement text)
+    {
+        var content = text.Value.Trim();
+        text.RemoveNodes();
+        text.Add(new XText(content));
+        var characters = System.Globalization.StringInfo.ParseCombiningCharacters(content).Length;
+        foreach (var name in new[] { "x", "y" })
+        {
+            var attribute = text.Attribute(name);
+            if (attribute is null) continue;
+            var values = attribute.Value.Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries);
+            attribute.Value = values.Length == characters && name == "x" ? string.Join(" ", values) : values.FirstOrDefault() ?? "0";
         }
     }
 
@@ -137,21 +157,30 @@ public static class FigureRenderer
             EncodingQuality = 101, // lossless for anything Skia has to rasterise
             PdfA = false,
         };
+        // A first pass collects the characters drawn, so that the PDF embeds the font cut to them (FontSubset).
+        var used = new HashSet<int>();
+        using (var bitmap = new SKBitmap(1, 1))
+        using (var scratch = new SKCanvas(bitmap))
+            Draw(model, scratch, OxyPlot.SkiaSharp.RenderTarget.VectorGraphic, 1f, size.WidthUnits, size.HeightUnits, codepoints: used);
+        using var subset = FontSubset.Create(BundledFont.FontBytes(), used);
         using var skStream = new SKManagedWStream(output);
         using var document = SKDocument.CreatePdf(skStream, metadata);
         var canvas = document.BeginPage((float)(size.WidthInches * pointsPerInch), (float)(size.HeightInches * pointsPerInch));
         if (model.Background.IsVisible()) canvas.Clear(ToSk(model.Background));
         // PDF draws in points (1/72 inch); OxyPlot lays out in 1/96 inch.
         Draw(model, canvas, OxyPlot.SkiaSharp.RenderTarget.VectorGraphic, pointsPerInch / (float)FigureSize.UnitsPerInch,
-            size.WidthUnits, size.HeightUnits);
+            size.WidthUnits, size.HeightUnits, subset);
         document.EndPage();
         document.Close();
     }
 
     private static void Draw(PlotModel model, SKCanvas canvas, OxyPlot.SkiaSharp.RenderTarget target, float dpiScale,
-        double widthUnits, double heightUnits)
+        double widthUnits, double heightUnits, SKTypeface? typeface = null, HashSet<int>? codepoints = null)
     {
-        using var context = new BundledFontRenderContext { RenderTarget = target, SkCanvas = canvas, DpiScale = dpiScale, UseTextShaping = false };
+        using var context = new BundledFontRenderContext
+        {
+            RenderTarget = target, SkCanvas = canvas, DpiScale = dpiScale, UseTextShaping = false, Typeface = typeface, Codepoints = codepoints,
+        };
         ((IPlotModel)model).Render(context, new OxyRect(0, 0, widthUnits, heightUnits));
         if (context.Failure is { } failure)
             throw new InvalidOperationException($"the figure could not be drawn: {failure}");

@@ -49,7 +49,9 @@ public static class DemoCommand
         {
             ["note"] = "numbers from `spinsim demo`; all systems and true values are invented for the demonstration",
         };
-        int Step(params string[] args)
+        var dataLines = new StringWriter();
+        // Runs one command, logs it with its output, and returns its stdout.
+        string Step(params string[] args)
         {
             io.Out.WriteLine($"spinsim {string.Join(' ', args.Select(Quote))}");
             log.WriteLine($"$ spinsim {string.Join(' ', args.Select(Quote))}");
@@ -60,7 +62,7 @@ public static class DemoCommand
             log.Write(e.ToString());
             log.WriteLine();
             if (code != 0) throw new UserInputException($"demo step failed (exit {code}): spinsim {string.Join(' ', args)}\n{e}");
-            return code;
+            return o.ToString();
         }
 
         // 1. Every example system: line list, spectrum and figure.
@@ -69,10 +71,12 @@ public static class DemoCommand
         {
             var name = Path.GetFileNameWithoutExtension(file);
             var stem = Path.Combine(outDir, "systems", name);
-            Step("simulate", file, "--lines", stem + ".lines.csv", "--spectrum", stem + ".jdx", "--jcamp-form", "difdup",
+            var output = Step("simulate", file, "--lines", stem + ".lines.csv", "--spectrum", stem + ".jdx", "--jcamp-form", "difdup",
                 "--points", Points.ToString(), "--figure", stem + ".png", "--labels", "--sticks");
             var lineCount = File.ReadLines(stem + ".lines.csv").Count() - 1;
-            simulated.Add(new JsonObject { ["system"] = Path.GetFileName(file), ["lines"] = lineCount });
+            var dataLine = DataLineOf(output);
+            dataLines.WriteLine($"{Path.GetFileName(file)} (simulated, invented values):\n  {dataLine}");
+            simulated.Add(new JsonObject { ["system"] = Path.GetFileName(file), ["lines"] = lineCount, ["data_line"] = dataLine });
         }
         summary["simulated"] = simulated;
 
@@ -88,11 +92,12 @@ public static class DemoCommand
             Step("simulate", truth, "--spectrum", measured, "--jcamp-form", "difdup", "--points", Points.ToString(),
                 "--noise", "0.005", "--seed", tag == "aabb" ? "11" : "12", "--phase-error", tag == "aabb" ? "1.5" : "-2.0");
             var report = Path.Combine(outDir, $"fit-{tag}.json");
-            // The ABX fit also runs the block bootstrap, to show the second error estimate.
+            // The ABX fit also runs the block bootstrap, to show the second error estimate, and draws its figure at the
+            // width of one journal column (85 mm); the AA'BB' figure is two columns wide.
             Step(["fit", Path.Combine(systemsDir, start), "--data", measured, "--setup", setup, "--quiet",
                 "--report", report, "--write-system", Path.Combine(outDir, $"fit-{tag}.best.toml"),
                 "--figure", Path.Combine(outDir, $"fit-{tag}.png"), "--html", Path.Combine(outDir, $"fit-{tag}.html"),
-                .. (tag == "abx" ? new[] { "--bootstrap", "40" } : [])]);
+                .. (tag == "abx" ? new[] { "--bootstrap", "40", "--width-mm", "85", "--height-mm", "95", "--no-title" } : [])]);
             using var json = JsonDocument.Parse(File.ReadAllText(report));
             var root = json.RootElement;
             fits.Add(new JsonObject
@@ -103,6 +108,7 @@ public static class DemoCommand
                 ["converged"] = root.GetProperty("converged").GetBoolean(),
                 ["rms"] = root.GetProperty("rms").GetDouble(),
                 ["starts_at_best"] = root.GetProperty("starts_at_best").GetInt32(),
+                ["report_line"] = root.GetProperty("report_line").GetString(),
                 ["parameters"] = new JsonArray(root.GetProperty("parameters").EnumerateArray()
                     .Select(p => (JsonNode)new JsonObject
                     {
@@ -113,8 +119,11 @@ public static class DemoCommand
                             ? p.GetProperty("bootstrap_std_error").GetDouble() : null,
                     }).ToArray()),
             });
+            dataLines.WriteLine($"{Path.GetFileName(measured)} (fitted from {start}; synthetic trace from invented values):\n  {root.GetProperty("report_line").GetString()}");
         }
         summary["fits"] = fits;
+        File.WriteAllText(Path.Combine(outDir, "data-lines.txt"), dataLines.ToString());
+        log.WriteLine($"(data lines gathered in {Path.Combine(outDir, "data-lines.txt")})");
 
         // 3. Field planning for the AA'BB' ring, and a splitting diagram.
         var fields = Path.Combine(outDir, "fields-para-ring.json");
@@ -149,6 +158,10 @@ public static class DemoCommand
             stream.CopyTo(file);
         }
     }
+
+    private static string DataLineOf(string output) =>
+        output.Split('\n').Select(l => l.TrimEnd('\r')).FirstOrDefault(l => l.StartsWith("data line: ", StringComparison.Ordinal))?["data line: ".Length..]
+        ?? throw new InvalidOperationException("simulate printed no data line");
 
     private static void WriteResource(string name, string path)
     {

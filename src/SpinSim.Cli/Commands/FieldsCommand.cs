@@ -44,11 +44,13 @@ public static class FieldsCommand
         var shape = TraceChoice.ShapeOption(required: true);
         var share = new Option<double>("--gaussian-share") { Description = "For --shape voigt: Gaussian share f_G / (f_L + f_G) of the width, 0 to 1", DefaultValueFactory = _ => 0.5, HelpName = "FRACTION" };
         var json = new Option<bool>("--json") { Description = "Print a JSON list with one entry per field instead of the table" };
-        var figure = new Option<string?>("--figure") { Description = "Draw the spectra at every field, stacked on one ppm axis: .png, .svg or .pdf", HelpName = "FILE" };
+        var figure = new FigureChoice();
+        figure.Path.Description = "Draw the spectra at every field, stacked on one ppm axis: .png, .svg or .pdf";
         var command = new Command("fields", "Compare a spin system at several fields: distance from first order, resolved lines and the lowest first-order field per cluster")
         {
-            file, at, linewidth, tolerance, shape, share, json, figure,
+            file, at, linewidth, tolerance, shape, share, json,
         };
+        figure.AddTo(command);
         command.SetAction(parse =>
         {
             var path = parse.GetValue(file)!;
@@ -62,8 +64,9 @@ public static class FieldsCommand
             var gaussianShare = parse.GetValue(share);
             if (!(gaussianShare >= 0 && gaussianShare <= 1)) throw new UserInputException("--gaussian-share", $"must be between 0 and 1, got {gaussianShare}");
             using var outputs = new StagedOutputs([path]);
-            var figurePath = parse.GetValue(figure);
-            var format = figurePath is null ? (FigureFormat?)null : FigureChoice.FormatOf(figurePath);
+            var figurePath = parse.GetValue(figure.Path);
+            var figureOptions = figurePath is null ? null : figure.Options(parse);
+            if (figurePath is not null) FigureChoice.FormatOf(figurePath);
             if (figurePath is not null) outputs.Check(figurePath);
             foreach (var f in fields)
                 if (SpinSystemRules.Check(f, [], []).FirstOrDefault() is { } problem)
@@ -81,7 +84,7 @@ public static class FieldsCommand
             if (figurePath is not null)
             {
                 var traces = StackedTraces(document, plan);
-                outputs.AddBytes(figurePath, stream => StackedFieldsFigure.Render(traces, FigureOptions.Default, format!.Value, stream));
+                FigureChoice.Write(outputs, figurePath, StackedFieldsFigure.Create(traces, figureOptions!), figureOptions!);
             }
             foreach (var written in outputs.Commit()) io.Status($"written: {written}");
             return ExitCodes.Success;

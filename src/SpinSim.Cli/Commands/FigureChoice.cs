@@ -5,7 +5,7 @@ using SpinSim.Formats.Output;
 
 namespace SpinSim.Cli.Commands;
 
-/// <summary>Options for a figure file: path (format by extension), size in mm or pixels, dpi and font size.</summary>
+/// <summary>Options for a figure file: path (format by extension), size in mm or pixels, dpi, font size and title.</summary>
 public sealed class FigureChoice
 {
     public Option<string?> Path { get; } = new("--figure") { Description = "Write a figure: .png, .svg or .pdf (chosen by extension)", HelpName = "FILE" };
@@ -15,10 +15,12 @@ public sealed class FigureChoice
     public Option<int?> HeightPx { get; } = new("--height-px") { Description = "Figure height in pixels (instead of mm)", HelpName = "PX" };
     public Option<double> Dpi { get; } = new("--dpi") { Description = "Resolution of PNG figures", DefaultValueFactory = _ => 300, HelpName = "DPI" };
     public Option<double> FontSize { get; } = new("--font-size") { Description = "Font size in points", DefaultValueFactory = _ => 9, HelpName = "PT" };
+    public Option<string?> Title { get; } = new("--title") { Description = "Title drawn above the figure (default: one naming what it shows)", HelpName = "TEXT" };
+    public Option<bool> NoTitle { get; } = new("--no-title") { Description = "Draw no title (a paper's caption says it)" };
 
     public void AddTo(Command command)
     {
-        foreach (var o in new Option[] { Path, WidthMm, HeightMm, WidthPx, HeightPx, Dpi, FontSize }) command.Options.Add(o);
+        foreach (var o in new Option[] { Path, WidthMm, HeightMm, WidthPx, HeightPx, Dpi, FontSize, Title, NoTitle }) command.Options.Add(o);
     }
 
     /// <summary>The figure options, checked (before any work) so that a bad size is refused with nothing written.</summary>
@@ -33,8 +35,10 @@ public sealed class FigureChoice
             HeightPx = parse.GetValue(HeightPx),
             Dpi = parse.GetValue(Dpi),
             FontSizePt = parse.GetValue(FontSize),
-            Title = title,
+            Title = parse.GetValue(NoTitle) ? "" : parse.GetValue(Title) ?? title,
         };
+        if (parse.GetValue(NoTitle) && parse.GetValue(Title) is not null)
+            throw new UserInputException("give --title TEXT or --no-title, not both");
         if (options.Problem() is { } problem) throw new UserInputException("figure size", problem);
         return options;
     }

@@ -2,6 +2,7 @@ using System.CommandLine;
 using System.Globalization;
 using System.Security.Cryptography;
 using SpinSim.Core.Fitting.Spectral;
+using SpinSim.Core.Reporting;
 using SpinSim.Core.Spectrum;
 using SpinSim.Core.Traces;
 using SpinSim.Core.Units;
@@ -43,12 +44,14 @@ public static class FitCommand
             DefaultValueFactory = _ => 0,
             HelpName = "N",
         };
+        var solvent = new Option<string?>("--solvent") { Description = "Solvent named in the data line (default: the JCAMP-DX file's .SOLVENT NAME, if any)", HelpName = "NAME" };
+        var noTable = new Option<bool>("--no-table") { Description = "Leave the parameter table out of the figure" };
         var data = new DataFileOptions();
         var figure = new FigureChoice();
         var engine = new EngineChoice();
         var command = new Command("fit", "Fit shifts, couplings, linewidth, scale and baseline to a measured spectrum by nonlinear least squares")
         {
-            file, dataFiles, setupFile, linewidth, shape, starts, seed, bootstrap, report, writeSystem, html,
+            file, dataFiles, setupFile, linewidth, shape, starts, seed, bootstrap, report, writeSystem, html, solvent, noTable,
         };
         data.AddTo(command);
         figure.AddTo(command);
@@ -136,13 +139,19 @@ public static class FitCommand
             }
 
             result = result with { Setup = result.Setup! with { CommandLine = CommandLine(parse), Version = Versions.Current } };
-            PrintReport(io.Out, result, systemPath, paths);
+            var reportLine = NmrDataLine.Format(result.FittedSystem, new DataLineOptions
+            {
+                Solvent = parse.GetValue(solvent) ?? traces.Select(SolventOf).FirstOrDefault(x => x is not null),
+                FieldsMHz = traces.Select(t => t.ObserveMHz!.Value).Distinct().ToArray(),
+                Uncertainty = name => QuotedError(result, name),
+            });
+            PrintReport(io.Out, result, systemPath, paths, reportLine);
             foreach (var w in result.Warnings) io.Warn(w);
 
             var hashes = inputs.Select(p => (Path.GetFileName(p), Sha256(p))).ToArray();
             var created = DateTimeOffset.UtcNow;
             if (reportPath is not null)
-                outputs.Add(reportPath, w => w.Write(FitReportJson.Write(result, hashes, Versions.Current, created)));
+                outputs.Add(reportPath, w => w.Write(FitReportJson.Write(result, hashes, Versions.Current, created, reportLine)));
             if (outSystem is not null)
             {
                 var header = new[]
@@ -153,14 +162,31 @@ public static class FitCommand
                 };
                 outputs.Add(outSystem, w => w.Write(SpinSystemToml.Write(result.FittedSystem, result.FittedWidth ?? document.DefaultWidth, header, document.Symmetries)));
             }
+            var figureData = FigureData(result, problem.Data, $"Fit of {Path.GetFileName(systemPath)}");
             if (figurePath is not null)
-                FigureChoice.Write(outputs, figurePath, FitFigure.Create(FigureData(result, systemPath), figureOptions), figureOptions);
+            {
+                var (model, layout) = FitFigure.Build(figureData with { ShowTable = !parse.GetValue(noTable) }, figureOptions);
+                if (layout.RowsLeftOut > 0) io.Warn($"{figurePath}: {layout.Note}");
+                FigureChoice.Write(outputs, figurePath, model, figureOptions);
+            }
             if (htmlPath is not null)
             {
-                var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(FitFigure.Create(FigureData(result, systemPath), figureOptions), FigureFormat.Svg, figureOptions));
+                // Full column width in the page, and no table in the figure: the page has its own.
+                var pageFigure = figureOptions with { WidthMm = 170, HeightMm = 95 + 35 * (result.Traces.Count - 1), WidthPx = null, HeightPx = null, Title = "" };
+                var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(FitFigure.Create(figureData with { ShowTable = false }, pageFigure), FigureFormat.Svg, pageFigure));
+                var record = System.Text.Json.Nodes.JsonNode.Parse(FitReportJson.Write(result, hashes, Versions.Current, created, reportLine));
                 var page = HtmlFitReport.Render(new FitReportData(
-                    $"SpinSim fit of {Path.GetFileName(systemPath)}", svg, Rows(result), result.Warnings, hashes, Versions.Current, created,
-                    Statistics(result), new ParameterCorrelation(result.FreeNames, result.Correlation)) { ErrorHeading = ErrorHeading(result), Setup = result.Setup });
+                    $"SpinSim fit of {Path.GetFileName(systemPath)}", svg, FitTable.Rows(result, trueMinus: true), result.Warnings, hashes, Versions.Current, created,
+                    Statistics(result), new ParameterCorrelation(result.FreeNames.Select(n => FitTable.ShortLabel(result, n)).ToArray(), result.Correlation))
+                {
+                    TableKey = FitTable.Key(result.Bootstrap is not null),
+                    ReportLine = reportLine,
+                    // The setup record in readable rows (the JSON's "setup" is written from the same record).
+                    Setup = result.Setup?.Rows().Select(r => (r.Label, r.Value)).ToArray() ?? SetupTable.Flatten(record?["setup"]),
+                    Banner = result.Stopped ? "The fit was stopped before it finished: the values are the best point found so far, not a converged optimum."
+                        : !result.Converged ? $"The fit did not converge ({result.StopReason}): the values are the last point reached, not a minimum; do not quote them."
+                        : null,
+                });
                 outputs.Add(htmlPath, w => w.Write(page));
             }
             foreach (var written in outputs.Commit()) io.Status($"written: {written}");
@@ -171,31 +197,29 @@ public static class FitCommand
         return command;
     }
 
-    internal static FitFigureData FigureData(SpectrumFitResult result, string systemPath)
+    /// <summary>Every fitted trace with its field, the fitted regions and the excluded ranges, and the table rows.</summary>
+    internal static FitFigureData FigureData(SpectrumFitResult result, IReadOnlyList<FitDataset> datasets, string title) =>
+        new(result.Traces.Select(t => new FitFigureTrace(t.Measured, t.Model, t.Residual,
+                t.Measured.ObserveMHz is { } mhz ? string.Create(CultureInfo.InvariantCulture, $"{NmrDataLine.Nominal(mhz):0.#} MHz") : "")).ToArray(),
+            FitTable.Rows(result, trueMinus: true), title)
+        {
+            Regions = datasets.SelectMany(d => d.Regions).ToArray(),
+            Excluded = datasets.SelectMany(d => d.Exclude).Distinct().ToArray(),
+        };
+
+    // The error the data line's digits follow: the larger of the covariance and the bootstrap error, null when not fitted.
+    private static double? QuotedError(SpectrumFitResult result, string name)
     {
-        var t = result.Traces[0];
-        return new FitFigureData(t.Measured, t.Model, t.Residual, Rows(result),
-            $"Fit of {Path.GetFileName(systemPath)}") { ErrorHeading = ErrorHeading(result) };
+        var i = result.Parameters.ToList().FindIndex(p => p.Name == name);
+        if (i < 0 || !result.Parameters[i].Varied || !double.IsFinite(result.Parameters[i].StdError)) return null;
+        var bootstrap = result.Bootstrap?.StdErrors[i] is { } b && double.IsFinite(b) ? b : 0;
+        return Math.Max(result.Parameters[i].StdError, bootstrap);
     }
 
-    internal static IReadOnlyList<ParameterRow> Rows(SpectrumFitResult result) =>
-        // A tied group is shown once, on the row of its first member.
-        result.Parameters.Select((p, i) => (p, i))
-            .Where(t => t.p.TiedWith is null || !result.Parameters.Take(t.i).Any(q => t.p.TiedWith.Split(", ").Contains(q.Name)))
-            .Select(t => new ParameterRow(t.p.TiedWith is null ? t.p.Name : $"{t.p.Name} (= {t.p.TiedWith})", Format(t.p.Value, t.p.Kind),
-                StdErrorText(t.p, result.Bootstrap?.StdErrors[t.i], result.Setup?.Parameters[t.i].HeldBecause is not null), t.p.Unit)).ToList();
-
-    private static string ErrorHeading(SpectrumFitResult result) => result.Bootstrap is null ? "std. error" : "std. error (bootstrap)";
-
-    /// <summary>The covariance error, and the bootstrap error in brackets when there is one.</summary>
-    private static string StdErrorText(FittedParameter p, double? bootstrap, bool heldByTheFit)
-    {
-        // "held": the fit chose not to vary it (the warnings say why); "fixed": the setup did.
-        if (!p.Varied) return heldByTheFit ? "held" : "fixed";
-        var text = double.IsFinite(p.StdError) ? p.StdError.ToString("G2", CultureInfo.InvariantCulture) : "undetermined";
-        if (bootstrap is { } b && double.IsFinite(b)) text += $" ({b.ToString("G2", CultureInfo.InvariantCulture)})";
-        return text;
-    }
+    // JCAMP-DX names the solvent in ##.SOLVENT NAME (a data-dictionary label); other formats do not say.
+    private static string? SolventOf(SpectrumTrace trace) =>
+        trace.Origin.HeaderLabels.FirstOrDefault(kv => kv.Key.Replace(" ", "").Replace("_", "").Trim('.', '#')
+            .Equals("SOLVENTNAME", StringComparison.OrdinalIgnoreCase)).Value is { Length: > 0 } name ? name.Trim() : null;
 
     /// <summary>The command as typed (each argument quoted where it needs it), for the report.</summary>
     private static string CommandLine(ParseResult parse) =>
@@ -216,14 +240,12 @@ public static class FitCommand
         ("iterations (final run)", r.Iterations.ToString(CultureInfo.InvariantCulture)),
         ("starts reaching the best optimum", $"{r.StartsAtBest} of {r.Starts}"),
         ("starts that joined another's path", r.StartsJoined.ToString(CultureInfo.InvariantCulture)),
-        ("block bootstrap", r.Bootstrap is { } b ? $"{b.Converged} of {b.Replicates} refits, blocks of {b.BlockPoints} points (errors in brackets)" : "not run"),
+        ("block bootstrap", r.Bootstrap is { } b ? $"{b.Converged} of {b.Replicates} refits, blocks of {b.BlockPoints} points (the ± column)" : "not run"),
         .. r.Traces.Where(t => t.Measured.Origin.Processing is not null).Select(t => (
             $"processing of {Path.GetFileName(t.Measured.Origin.Source)}", string.Join("; ", t.Measured.Origin.Processing!.Describe()))),
     ];
 
-    private static string Format(double v, ParameterKind kind) => v.ToString(ParameterKindInfo.Of(kind).ValueFormat, CultureInfo.InvariantCulture);
-
-    private static void PrintReport(TextWriter o, SpectrumFitResult r, string systemPath, IReadOnlyList<string> data)
+    private static void PrintReport(TextWriter o, SpectrumFitResult r, string systemPath, IReadOnlyList<string> data, string reportLine)
     {
         o.WriteLine($"fit of {systemPath} to {string.Join(", ", data)}");
         foreach (var t in r.Traces)
@@ -247,16 +269,24 @@ public static class FitCommand
         if (r.Setup is { } setup)
             o.WriteLine($"regions: {string.Join(" | ", setup.Traces.Select(t => string.Join("; ", t.Regions) + (t.RegionsAutomatic ? " (automatic)" : "")))}; " +
                         $"shifts kept within {setup.ShiftWindowPpm:0.###} ppm of their start unless bounded (shift_window_ppm widens it)");
+        var rows = FitTable.Rows(r);
+        var labelWidth = Math.Max(24, rows.Max(x => x.Label.Length) + 2);
+        var valueWidth = Math.Max(14, rows.Max(x => x.Value.Length));
+        foreach (var group in rows.GroupBy(x => x.Group))
+        {
+            o.WriteLine();
+            o.WriteLine($"  {ParameterDisplay.GroupHeading(group.Key)}");
+            foreach (var row in group)
+                o.WriteLine($"    {row.Label.PadRight(labelWidth)} {row.Value.PadLeft(valueWidth)}  {row.Bootstrap}".TrimEnd());
+        }
         o.WriteLine();
-        var errorWidth = r.Bootstrap is null ? 12 : 22;
-        o.WriteLine($"  {"parameter",-28} {"value",14} {(r.Bootstrap is null ? "std error" : "std error (bootstrap)").PadLeft(errorWidth)}  unit");
-        foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError.PadLeft(errorWidth)}  {row.Unit}");
-        o.WriteLine();
-        o.WriteLine("Standard errors assume independent points; neighbouring points of a spectrum are correlated, so they are optimistic.");
+        o.WriteLine(FitTable.Key(r.Bootstrap is not null));
         if (r.Bootstrap is { } b)
-            o.WriteLine($"Bootstrap errors (in brackets): scatter of {b.Converged} refits to the model plus residuals resampled in blocks of {b.BlockPoints} points.");
+            o.WriteLine($"Bootstrap: scatter of {b.Converged} refits to the model plus residuals resampled in blocks of {b.BlockPoints} points.");
         else
             o.WriteLine("Give --bootstrap N for errors that allow for the correlation (a block bootstrap of N refits).");
+        o.WriteLine();
+        o.WriteLine($"data line: {reportLine}");
     }
 
     private static string Sha256(string path)

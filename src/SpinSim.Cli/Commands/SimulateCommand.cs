@@ -16,6 +16,16 @@ namespace SpinSim.Cli.Commands;
 public static class SimulateCommand
 {
     /// <summary>Linewidth used when neither the file nor --linewidth gives one (a well-shimmed high-field magnet).</summary>
+    private static SpinSim.Figures.Plots.VerticalExpansion ParseExpansion(string text)
+    {
+        var parts = text.Split(':');
+        if (parts.Length == 2 && double.TryParse(parts[0], System.Globalization.NumberStyles.Float, System.Globalization.CultureInfo.InvariantCulture, out var a)
+            && double.TryParse(parts[1], System.Globalization.NumberStyles.Float, System.Globalization.CultureInfo.InvariantCulture, out var b)
+            && double.IsFinite(a) && double.IsFinite(b) && a != b)
+            return new SpinSim.Figures.Plots.VerticalExpansion(a, b);
+        throw new UserInputException("--expand", $"expected a ppm range HIGH:LOW such as 7.45:7.36, got \"{text}\"");
+    }
+
     public const double FallbackLinewidthHz = 1.0;
 
     public static Command Build(CommandIo io)
@@ -33,10 +43,17 @@ public static class SimulateCommand
         var phaseError = new Option<double>("--phase-error") { Description = "Mix in dispersion as a zero-order phase error of this many degrees, -180 to 180 (synthetic data for demos and tests)", HelpName = "DEG" };
         var sticks = new Option<bool>("--sticks") { Description = "In the figure, draw the transitions as sticks below the trace" };
         var labels = new Option<bool>("--labels") { Description = "In the figure, label the nuclei at their shifts" };
+        var solvent = new Option<string?>("--solvent") { Description = "Solvent named in the data line, e.g. CDCl3", HelpName = "NAME" };
+        var expand = new Option<string[]>("--expand")
+        {
+            Description = "In the figure, draw this ppm range again above the trace, scaled up and labelled ×N (HIGH:LOW, e.g. 7.45:7.36); give it more than once for several",
+            HelpName = "PPM:PPM",
+            AllowMultipleArgumentsPerToken = false,
+        };
         var figure = new FigureChoice();
         var command = new Command("simulate", "Simulate the spectrum of a spin system at a field: exact transitions, trace and integrals")
         {
-            file, field, lines, spectrum, jcampForm, noise, seed, phaseError, sticks, labels,
+            file, field, lines, spectrum, jcampForm, noise, seed, phaseError, sticks, labels, solvent, expand,
         };
         figure.AddTo(command);
         engine.AddTo(command);
@@ -89,11 +106,13 @@ public static class SimulateCommand
             io.Detail($"blocks: {result.Blocks}, largest {result.LargestBlock} states; {elapsed.TotalMilliseconds:0} ms");
             io.Detail($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; missing (numerical zeros): {result.DroppedIntensity:G3}");
 
+            io.Out.WriteLine($"data line: {SpinSim.Core.Reporting.NmrDataLine.Format(system, new SpinSim.Core.Reporting.DataLineOptions { Solvent = parse.GetValue(solvent) })}");
             if (figurePath is not null)
             {
                 var model = SpinSim.Figures.Plots.SpectrumFigure.Simulated(simulated.Trace,
                     parse.GetValue(sticks) ? SpinSim.Figures.Plots.SpectrumFigure.SticksFrom(result) : null,
-                    parse.GetValue(labels) ? SpinSim.Figures.Plots.SpectrumFigure.LabelsFrom(system) : null, figureOptions!);
+                    parse.GetValue(labels) ? SpinSim.Figures.Plots.SpectrumFigure.LabelsFrom(system) : null, figureOptions!,
+                    (parse.GetValue(expand) ?? []).Select(ParseExpansion).ToArray());
                 FigureChoice.Write(outputs, figurePath, model, figureOptions!);
             }
             if (linesPath is not null) outputs.Add(linesPath, w => LineListCsv.Write(w, result, system));

@@ -11,8 +11,8 @@ namespace SpinSim.Cli.Commands;
 /// </summary>
 public static class TreeCommand
 {
-    /// <summary>Below this |delta nu / J| a splitting diagram misleads: the pattern is second order (common practice, no source).</summary>
-    public const double FirstOrderRatio = 10;
+    /// <summary>Below this |delta nu / J| a splitting diagram misleads: the pattern is second order (the data line's rule).</summary>
+    public const double FirstOrderRatio = SpinSim.Core.Reporting.NmrDataLine.FirstOrderRatio;
 
     public static Command Build(CommandIo io)
     {
@@ -30,7 +30,7 @@ public static class TreeCommand
             var e = system.IndexOf(id);
             if (e < 0) throw new UserInputException(path, $"no nucleus \"{id}\"", $"The ids are {string.Join(", ", system.Nuclei.Select(n => n.Id))}");
             var figurePath = parse.GetValue(figure.Path);
-            var options = figurePath is null ? null : figure.Options(parse, $"Splitting of {id}, first order");
+            var options = figurePath is null ? null : figure.Options(parse, $"First-order splitting of {SpinSim.Core.Reporting.Typography.Primes(id)}");
             using var outputs = new StagedOutputs([path]);
             if (figurePath is not null)
             {
@@ -43,16 +43,21 @@ public static class TreeCommand
                 .OrderByDescending(p => Math.Abs(p.JHz)).ToList();
             io.Out.WriteLine($"{id} at {system.Nuclei[e].Shift.Value:0.####} ppm, {system.Field.Value:0.###} MHz: first-order pattern " +
                              $"{CouplingTreeFigure.PatternName(partners.Select(p => (p.Partner, p.JHz, p.Count)).ToList())}");
+            var secondOrder = new List<string>();
             foreach (var p in partners)
             {
                 var sameIsotope = system.Nuclei[p.Index].Isotope == system.Nuclei[e].Isotope;
                 var ratio = sameIsotope ? Math.Abs(system.FrequencyHz(e) - system.FrequencyHz(p.Index)) / Math.Abs(p.JHz) : double.PositiveInfinity;
                 io.Out.WriteLine($"  J to {p.Partner} (x{p.Count}) = {p.JHz:0.###} Hz{(sameIsotope ? $", |dnu/J| = {ratio:0.##}" : ", heteronuclear")}");
                 if (ratio < FirstOrderRatio)
+                    secondOrder.Add(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"|Δν/J| = {ratio:0.#} to {SpinSim.Core.Reporting.Typography.Primes(p.Partner)}"));
+                if (ratio < FirstOrderRatio)
                     io.Warn($"|dnu/J| to {p.Partner} is below {FirstOrderRatio}: the real pattern is second order and the diagram is only a guide; use simulate");
             }
             if (figurePath is not null)
-                FigureChoice.Write(outputs, figurePath, CouplingTreeFigure.Create(id, system.FrequencyHz(e), partners.Select(p => (p.Partner, p.JHz, p.Count)).ToList(), options!), options!);
+                FigureChoice.Write(outputs, figurePath, CouplingTreeFigure.Create(id, system.FrequencyHz(e), partners.Select(p => (p.Partner, p.JHz, p.Count)).ToList(), options!,
+                    secondOrder.Count == 0 ? null
+                        : $"First order does not hold ({string.Join(", ", secondOrder)}; below {FirstOrderRatio:0}): the real pattern differs, simulate it."), options!);
             foreach (var written in outputs.Commit()) io.Status($"written: {written}");
             return ExitCodes.Success;
         });

@@ -30,8 +30,10 @@ public static class CouplingTreeFigure
     /// when they have room.
     /// </summary>
     /// <exception cref="ArgumentException">A non-finite J, a count below 1, more than <see cref="MaxLines"/> lines, or invalid options.</exception>
+    /// <param name="secondOrderWarning">When first order does not hold, the sentence that says so (with |Δν/J|); it is
+    /// written in the figure under the title, so the diagram cannot be shown without it.</param>
     public static PlotModel Create(string nucleusLabel, double centreHz, IReadOnlyList<(string Partner, double JHz, int Count)> couplings,
-        FigureOptions options)
+        FigureOptions options, string? secondOrderWarning = null)
     {
         ArgumentNullException.ThrowIfNull(nucleusLabel);
         ArgumentNullException.ThrowIfNull(couplings);
@@ -48,7 +50,17 @@ public static class CouplingTreeFigure
         }
 
         var font = FigureStyle.FontUnits(options);
+        nucleusLabel = Core.Reporting.Typography.Primes(nucleusLabel);
+        couplings = couplings.Select(c => (Core.Reporting.Typography.Primes(c.Partner), c.JHz, c.Count)).ToList();
         var model = FigureStyle.NewModel(options, $"First-order splitting of {nucleusLabel}");
+        if (!string.IsNullOrWhiteSpace(secondOrderWarning))
+        {
+            // Wrapped to the figure width: the warning is part of the figure and must not run off it.
+            var width = options.Resolve().WidthUnits - 2 * font;
+            model.Subtitle = string.Join("\n", BundledFont.Wrap(secondOrderWarning, font * 0.95, width));
+            model.SubtitleFontSize = font * 0.95;
+            model.SubtitleColor = FigurePalette.Vermillion;
+        }
         var levels = couplings.Count;
 
         // Tree: level i (before coupling i) at height levels - i; lines as (offset, weight).
@@ -83,7 +95,7 @@ public static class CouplingTreeFigure
             });
 
         var extent = Math.Max(multiplet.Max(l => Math.Abs(l.X)), 1.0);
-        model.Axes.Add(new LinearAxis
+        var hzAxis = new LinearAxis
         {
             Key = HzAxis,
             Position = AxisPosition.Bottom,
@@ -91,13 +103,15 @@ public static class CouplingTreeFigure
             EndPosition = 0,
             Minimum = -extent * 1.15,
             Maximum = extent * 1.15,
-            Title = string.Create(CultureInfo.InvariantCulture, $"frequency offset from {centreHz:0.##} Hz / Hz"),
+            Title = string.Create(CultureInfo.InvariantCulture, $"Δν / Hz, from {centreHz:0.##} Hz"),
             TickStyle = TickStyle.Outside,
             AxislineStyle = LineStyle.Solid,
             AxislineThickness = FigureStyle.AxisThickness,
             IsZoomEnabled = false,
             IsPanEnabled = false,
-        });
+        };
+        FigureStyle.TrueMinusLabels(hzAxis);
+        model.Axes.Add(hzAxis);
         model.Axes.Add(FigureStyle.HiddenVerticalAxis(TreeAxis, MultipletBase - 0.15, levels + 0.45));
         model.Series.Add(tree);
 
@@ -124,11 +138,15 @@ public static class CouplingTreeFigure
         for (var i = 0; i < levels; i++)
         {
             var (partner, j, n) = couplings[i];
-            var text = string.Create(CultureInfo.InvariantCulture, $"J({nucleusLabel},{partner}) = {Math.Abs(j):0.0#} Hz");
-            labels.Add((n > 1 ? $"{text}, {n} nuclei" : text, levels - i - 0.5));
+            var who = n > 1 ? $"{partner} ({n})" : partner;
+            labels.Add((string.Create(CultureInfo.InvariantCulture, $"{who}: J = {Math.Abs(j):0.0#} Hz"), levels - i - 0.5));
         }
         labels.Add(($"multiplet: {PatternName(couplings)}", MultipletBase + MultipletHeight / 2));
-        var margin = new MarginLabelsAnnotation(labels, leftSide: false, font) { XAxisKey = HzAxis, YAxisKey = TreeAxis };
+        // The labels take at most 40 % of the width: smaller text on a narrow figure, down to 70 % of the size.
+        var labelFont = font;
+        var widthUnits = options.Resolve().WidthUnits;
+        while (new MarginLabelsAnnotation(labels, false, labelFont).MarginWidth > 0.4 * widthUnits && labelFont > 0.7 * font) labelFont *= 0.95;
+        var margin = new MarginLabelsAnnotation(labels, leftSide: false, labelFont) { XAxisKey = HzAxis, YAxisKey = TreeAxis };
         model.Annotations.Add(margin);
         model.PlotMargins = new OxyThickness(font, double.NaN, margin.MarginWidth, double.NaN);
         return model;
@@ -139,13 +157,9 @@ public static class CouplingTreeFigure
         FigureOptions options, FigureFormat format, Stream output) =>
         FigureRenderer.Render(Create(nucleusLabel, centreHz, couplings, options), format, options, output);
 
-    /// <summary>The usual letters: d, t, q, quint, sext, sept per coupling in order ("dt"), s when nothing splits.</summary>
-    public static string PatternName(IReadOnlyList<(string Partner, double JHz, int Count)> couplings)
-    {
-        string[] names = ["s", "d", "t", "q", "quint", "sext", "sept"];
-        var parts = couplings.Where(c => c.JHz != 0).Select(c => c.Count < names.Length ? names[c.Count] : $"{c.Count + 1}-line").ToList();
-        return parts.Count == 0 ? "s" : string.Concat(parts);
-    }
+    /// <summary>The usual letters for a first-order pattern (<see cref="Core.Reporting.NmrDataLine.Multiplicity"/>), "s" when nothing splits.</summary>
+    public static string PatternName(IReadOnlyList<(string Partner, double JHz, int Count)> couplings) =>
+        Core.Reporting.NmrDataLine.Multiplicity(couplings.Select(c => (c.JHz, c.Count)).ToList());
 
     // Weights are whole numbers; writing them over the sticks shows the 1:2:1 of a triplet directly, when
     // neighbouring labels have room.

@@ -1,6 +1,7 @@
 using OxyPlot;
 using OxyPlot.Axes;
 using OxyPlot.Series;
+using SpinSim.Core.Reporting;
 using SpinSim.Figures.Rendering;
 
 namespace SpinSim.Figures.Plots;
@@ -19,11 +20,14 @@ internal static class FigureStyle
     /// <summary>A white model with the bundled font at the options' size and the given default title.</summary>
     public static PlotModel NewModel(FigureOptions options, string defaultTitle)
     {
-        options.Resolve(); // refuse bad options when the figure is built, not only when it is drawn
+        var size = options.Resolve(); // refuse bad options when the figure is built, not only when it is drawn
         var font = FontUnits(options);
+        // A title wider than the figure is broken into lines rather than cut at the edges.
+        var title = string.Join("\n", BundledFont.Wrap(options.Title ?? defaultTitle ?? "", font * 1.15, size.WidthUnits - 2 * font));
         return new PlotModel
         {
-            Title = options.Title ?? defaultTitle,
+            Title = title,
+            TitleHorizontalAlignment = TitleHorizontalAlignment.CenteredWithinView,
             TitleFontSize = font * 1.15,
             TitleFontWeight = FontWeights.Bold,
             DefaultFont = BundledFont.FamilyName,
@@ -130,11 +134,61 @@ internal static class FigureStyle
     }
 
     /// <summary>"1H" as "¹H": mass numbers are written as superscripts.</summary>
-    public static string NucleusLabel(string nucleus)
+    public static string NucleusLabel(string nucleus) => Typography.Isotope(nucleus);
+
+    /// <summary>
+    /// Tick steps of 1, 2 or 5 times a power of ten (0.1, 0.2, 0.5, 1 ppm on a whole spectrum; 0.01, 0.02, 0.05 on one
+    /// multiplet), the smallest that leaves each label about three label widths of room, and one number of decimals for all
+    /// the given axes (the panels of a broken axis read alike). Labels use the true minus sign.
+    /// </summary>
+    /// <param name="panels">Each axis with the width in layout units it will be drawn over (an estimate is enough).</param>
+    public static void SetTicks(IReadOnlyList<(LinearAxis Axis, double WidthUnits)> panels, double font)
     {
-        const string superscripts = "⁰¹²³⁴⁵⁶⁷⁸⁹";
-        var digits = nucleus.TakeWhile(char.IsAsciiDigit).Count();
-        return string.Concat(nucleus[..digits].Select(c => superscripts[c - '0'])) + nucleus[digits..];
+        var steps = panels.Select(p =>
+        {
+            var span = Math.Abs(p.Axis.Maximum - p.Axis.Minimum);
+            var label = BundledFont.MeasureWidth("00.00", font) + font;
+            var room = Math.Max(1, p.WidthUnits / (label * 1.25));
+            return NiceStep(span / room);
+        }).ToArray();
+        var decimals = steps.Length == 0 ? 0 : steps.Max(s => Math.Max(0, (int)-Math.Floor(Math.Log10(s) + 1e-9)));
+        for (var i = 0; i < panels.Count; i++)
+        {
+            var axis = panels[i].Axis;
+            axis.MajorStep = steps[i];
+            var leading = steps[i] / Math.Pow(10, Math.Floor(Math.Log10(steps[i]) + 1e-9));
+            axis.MinorStep = steps[i] / (Math.Round(leading) == 2 ? 4 : 5);
+            var format = "F" + decimals;
+            axis.LabelFormatter = v =>
+            {
+                var r = Math.Round(v, decimals);
+                return Typography.TrueMinus((r == 0 ? 0 : r).ToString(format, System.Globalization.CultureInfo.InvariantCulture)); // no "−0.0"
+            };
+        }
+    }
+
+    /// <summary>Tick labels of <paramref name="axis"/> with the true minus sign.</summary>
+    public static void TrueMinusLabels(Axis axis) =>
+        axis.LabelFormatter = v => Typography.TrueMinus(v.ToString("0.###", System.Globalization.CultureInfo.InvariantCulture));
+
+    /// <summary>The largest of 1, 2, 5 x 10^k not above <paramref name="atMost"/>, and at least 1 (expansion factors).</summary>
+    public static double NiceStepBelow(double atMost)
+    {
+        if (!(atMost > 1) || !double.IsFinite(atMost)) return 1;
+        var decade = Math.Pow(10, Math.Floor(Math.Log10(atMost)));
+        foreach (var m in new[] { 5.0, 2.0, 1.0 })
+            if (m * decade <= atMost * (1 + 1e-9)) return m * decade;
+        return decade;
+    }
+
+    /// <summary>The smallest of 1, 2, 5 x 10^k not below <paramref name="atLeast"/>.</summary>
+    public static double NiceStep(double atLeast)
+    {
+        if (!(atLeast > 0) || !double.IsFinite(atLeast)) return 1;
+        var decade = Math.Pow(10, Math.Floor(Math.Log10(atLeast)));
+        foreach (var m in new[] { 1.0, 2.0, 5.0, 10.0 })
+            if (m * decade >= atLeast * (1 - 1e-9)) return m * decade;
+        return 10 * decade;
     }
 
     /// <summary>Smallest and largest value, ignoring nothing (inputs are finite by construction).</summary>

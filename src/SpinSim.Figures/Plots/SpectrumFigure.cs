@@ -14,6 +14,12 @@ public sealed record StickLine(double ShiftPpm, double Intensity);
 /// <summary>A label written above the spectrum at a shift, naming the nucleus or set that resonates there.</summary>
 public sealed record ShiftLabel(string Text, double ShiftPpm);
 
+/// <summary>
+/// A range of the trace drawn again above itself, scaled up by <see cref="Factor"/> (chosen from 2, 5, 10, 20 ... when
+/// null) so a small multiplet can be read, and labelled "×N".
+/// </summary>
+public sealed record VerticalExpansion(double HighPpm, double LowPpm, double? Factor = null);
+
 /// <summary>A simulated spectrum: the trace, optionally the transitions as sticks below it, and labels at the shifts.</summary>
 public static class SpectrumFigure
 {
@@ -26,8 +32,9 @@ public static class SpectrumFigure
     /// neighbours would overlap. Intensities are in arbitrary units, so no intensity axis is drawn.
     /// </summary>
     /// <exception cref="ArgumentException">A stick or label with a non-finite value, or invalid options.</exception>
+    /// <param name="expansions">Ranges drawn again, scaled up, above the trace (insets "×N"); none when null.</param>
     public static PlotModel Simulated(SpectrumTrace trace, IReadOnlyList<StickLine>? sticks, IReadOnlyList<ShiftLabel>? labels,
-        FigureOptions options)
+        FigureOptions options, IReadOnlyList<VerticalExpansion>? expansions = null)
     {
         ArgumentNullException.ThrowIfNull(trace);
         ArgumentNullException.ThrowIfNull(options);
@@ -46,7 +53,9 @@ public static class SpectrumFigure
         var model = FigureStyle.NewModel(options, $"Simulated {FigureStyle.NucleusLabel(trace.Nucleus)} spectrum{field}");
 
         var (minPpm, maxPpm) = FigureStyle.Range(trace.ShiftPpm);
-        model.Axes.Add(FigureStyle.PpmAxis(trace.Nucleus, minPpm, maxPpm));
+        var ppmAxis = FigureStyle.PpmAxis(trace.Nucleus, minPpm, maxPpm);
+        model.Axes.Add(ppmAxis);
+        FigureStyle.SetTicks([(ppmAxis, size.WidthUnits * 0.9)], font);
 
         // Sticks get the lower quarter of the plot height, the trace the rest.
         var hasSticks = sticks.Count > 0;
@@ -92,7 +101,7 @@ public static class SpectrumFigure
             model.Annotations.Add(new TextAnnotation
             {
                 Text = p.Text,
-                TextPosition = new DataPoint(p.ShiftPpm, p.PeakTop),
+                TextPosition = new DataPoint(p.LabelPpm, p.PeakTop),
                 Offset = new ScreenVector(0, -(font * 0.4 + p.Row * lineHeight)),
                 TextHorizontalAlignment = HorizontalAlignment.Center,
                 TextVerticalAlignment = VerticalAlignment.Bottom,
@@ -107,6 +116,8 @@ public static class SpectrumFigure
             });
 
         // One trace needs no legend; with sticks the legend says which is which.
+        foreach (var expansion in expansions ?? []) AddExpansion(model, trace, expansion, yMax, font);
+
         if (hasSticks) FigureLegend.AddAbove(model, font);
         return model;
     }
@@ -116,15 +127,52 @@ public static class SpectrumFigure
         FigureOptions options, FigureFormat format, Stream output) =>
         FigureRenderer.Render(Simulated(trace, sticks, labels, options), format, options, output);
 
+    // The range again, scaled by N and lifted to 35 % of the tallest point so it floats over the baseline of the trace;
+    // N by default brings the range's tallest point to about 55 % of the trace's (1-2-5 steps, rounded down).
+    private static void AddExpansion(PlotModel model, SpectrumTrace trace, VerticalExpansion expansion, double yMax, double font)
+    {
+        var high = Math.Max(expansion.HighPpm, expansion.LowPpm);
+        var low = Math.Min(expansion.HighPpm, expansion.LowPpm);
+        var inside = Enumerable.Range(0, trace.Count).Where(i => trace.ShiftPpm[i] >= low && trace.ShiftPpm[i] <= high).ToArray();
+        if (inside.Length < 2)
+            throw new ArgumentException($"the expansion {high}..{low} ppm holds fewer than 2 points of the trace; give a range inside it", nameof(expansion));
+        var local = inside.Max(i => trace.Intensity[i]);
+        var factor = expansion.Factor ?? (local > 0 ? FigureStyle.NiceStepBelow(0.55 * yMax / local) : 1);
+        if (!(factor >= 1 && double.IsFinite(factor))) throw new ArgumentException($"an expansion factor must be at least 1, got {factor}", nameof(expansion));
+        var lift = 0.35 * yMax;
+        var points = inside.Select(i => (Ppm: trace.ShiftPpm[i], Y: lift + trace.Intensity[i] * factor)).ToArray();
+        model.Series.Add(FigureStyle.Line(FigureStyle.Points(points.Select(p => p.Ppm).ToArray(), points.Select(p => p.Y).ToArray()),
+            FigurePalette.Simulated, LineStyle.Solid, FigureStyle.TraceThickness * 0.8, TraceAxis, ""));
+        model.Series[^1].RenderInLegend = false;
+        model.Annotations.Add(new TextAnnotation
+        {
+            Text = string.Create(System.Globalization.CultureInfo.InvariantCulture, $"×{factor:0.##}"),
+            TextPosition = new DataPoint(high, lift + local * factor),
+            TextHorizontalAlignment = HorizontalAlignment.Left,
+            TextVerticalAlignment = VerticalAlignment.Bottom,
+            StrokeThickness = 0,
+            Background = OxyColors.Undefined,
+            TextColor = FigurePalette.Ink,
+            FontSize = font * 0.9,
+            XAxisKey = "ppm",
+            YAxisKey = TraceAxis,
+        });
+    }
+
     /// <summary>Sticks for the lines of an engine result.</summary>
     public static IReadOnlyList<StickLine> SticksFrom(LineList lines) =>
         lines.Lines.Select(l => new StickLine(l.ShiftPpm, l.Intensity)).ToArray();
 
-    /// <summary>One label per entry of the observed isotope, its id at its shift.</summary>
+    /// <summary>
+    /// One label per resonance of the observed isotope: entries at the same shift (the mirrored HA and HA′ of AA′BB′, or
+    /// other chemically equivalent entries) share one label, "HA/HA′", written with primes.
+    /// </summary>
     public static IReadOnlyList<ShiftLabel> LabelsFrom(SpinSystem system) =>
-        system.Nuclei.Where(n => n.Isotope == system.Observed).Select(n => new ShiftLabel(n.Id, n.Shift.Value)).ToArray();
+        system.Nuclei.Where(n => n.Isotope == system.Observed).GroupBy(n => n.Shift.Value)
+            .Select(g => new ShiftLabel(string.Join("/", g.Select(n => Core.Reporting.Typography.Primes(n.Id))), g.Key)).ToArray();
 
-    private sealed record PlacedLabel(string Text, double ShiftPpm, double PeakTop, int Row);
+    // LabelPpm: where the text is centred, moved in from the edges so the whole label stays inside the plot.
+    private sealed record PlacedLabel(string Text, double ShiftPpm, double LabelPpm, double PeakTop, int Row);
 
     // Greedy rows from left to right on the page (high ppm first): a label takes the lowest row whose last
     // label ends before it starts. The estimate of the text width in ppm only has to be roughly right.
@@ -139,7 +187,8 @@ public static class SpectrumFigure
             var row = rowEnds.FindIndex(end => end > label.ShiftPpm + halfWidth);
             if (row < 0) { row = rowEnds.Count; rowEnds.Add(0); }
             rowEnds[row] = label.ShiftPpm - halfWidth;
-            placed.Add(new PlacedLabel(label.Text, label.ShiftPpm, LocalMaximum(trace, label.ShiftPpm, Math.Max(halfWidth, 2 * ppmPerUnit)), row));
+            var inside = Math.Clamp(label.ShiftPpm, minPpm + halfWidth, Math.Max(minPpm + halfWidth, maxPpm - halfWidth));
+            placed.Add(new PlacedLabel(label.Text, label.ShiftPpm, inside, LocalMaximum(trace, label.ShiftPpm, Math.Max(halfWidth, 2 * ppmPerUnit)), row));
         }
         return placed;
     }

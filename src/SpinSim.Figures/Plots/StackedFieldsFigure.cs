@@ -33,7 +33,8 @@ public static class StackedFieldsFigure
         model.SubtitleFontSize = font * 0.9;
 
         var (minPpm, maxPpm) = FigureStyle.Range(traces.SelectMany(t => t.Trace.ShiftPpm));
-        model.Axes.Add(FigureStyle.PpmAxis(nucleus, minPpm, maxPpm));
+        var ppmAxis = FigureStyle.PpmAxis(nucleus, minPpm, maxPpm);
+        model.Axes.Add(ppmAxis);
         var n = traces.Count;
         model.Axes.Add(FigureStyle.HiddenVerticalAxis("stack", -0.08, (n - 1) * Step + 1.08));
 
@@ -46,13 +47,15 @@ public static class StackedFieldsFigure
             if (tallest == 0) tallest = 1;
             var y = trace.Intensity.Select(v => baseline + v / tallest).ToArray();
             model.Series.Add(FigureStyle.Line(FigureStyle.Points(trace.ShiftPpm, y),
-                FigurePalette.Sequence[i % FigurePalette.Sequence.Count], LineStyle.Solid, FigureStyle.TraceThickness, "stack", label));
+                FigurePalette.Sequence[i % FigurePalette.Sequence.Count], FigurePalette.StyleSequence[i % FigurePalette.StyleSequence.Count],
+                FigureStyle.TraceThickness, "stack", label));
             labels.Add((label, baseline + 0.15));
         }
 
         var margin = new MarginLabelsAnnotation(labels, leftSide: true, font) { XAxisKey = "ppm", YAxisKey = "stack" };
         model.Annotations.Add(margin);
         model.PlotMargins = new OxyThickness(margin.MarginWidth, double.NaN, font, double.NaN);
+        FigureStyle.SetTicks([(ppmAxis, options.Resolve().WidthUnits - margin.MarginWidth - 2 * font)], font);
         return model;
     }
 

@@ -41,6 +41,21 @@ public static class BundledFont
         return paint.MeasureText(text);
     }
 
+    /// <summary>Lines of <paramref name="text"/> broken at spaces so that each is at most <paramref name="width"/> wide (a single long word stays whole).</summary>
+    public static IReadOnlyList<string> Wrap(string text, double fontSize, double width)
+    {
+        var lines = new List<string>();
+        var line = "";
+        foreach (var word in text.Split(' ', StringSplitOptions.RemoveEmptyEntries))
+        {
+            var candidate = line.Length == 0 ? word : line + " " + word;
+            if (line.Length > 0 && MeasureWidth(candidate, fontSize) > width) { lines.Add(line); line = word; }
+            else line = candidate;
+        }
+        if (line.Length > 0) lines.Add(line);
+        return lines;
+    }
+
     /// <summary>Distance between baselines of consecutive lines at <paramref name="fontSize"/>, in the unit of the size.</summary>
     public static double LineHeight(double fontSize)
     {
@@ -48,15 +63,24 @@ public static class BundledFont
         return paint.FontSpacing;
     }
 
-    internal static SKPaint CreatePaint(double fontSize, bool bold) => new()
+    internal static SKPaint CreatePaint(double fontSize, bool bold, SKTypeface? typeface = null) => new()
     {
-        Typeface = Typeface,
+        Typeface = typeface ?? Typeface,
         TextSize = (float)fontSize,
         IsAntialias = true,
         SubpixelText = true,
         // Only the regular face is shipped; emboldening it is enough for titles and table headers.
         FakeBoldText = bold,
     };
+
+    /// <summary>The font file's bytes, for cutting a subset (<see cref="FontSubset"/>).</summary>
+    internal static byte[] FontBytes()
+    {
+        using var stream = OpenResource(FontResource);
+        using var copy = new MemoryStream();
+        stream.CopyTo(copy);
+        return copy.ToArray();
+    }
 
     private static SKTypeface Load()
     {

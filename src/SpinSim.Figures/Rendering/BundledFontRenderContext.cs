@@ -20,14 +20,22 @@ internal sealed class BundledFontRenderContext : SkiaRenderContext, IRenderConte
     /// <summary>The message OxyPlot drew in place of the plot when its rendering failed, else null.</summary>
     public string? Failure { get; private set; }
 
+    /// <summary>Draw text with this typeface (a subset of the bundled font) instead of the whole font.</summary>
+    public SKTypeface? Typeface { get; init; }
+
+    /// <summary>When set, every character drawn is added here (the first pass of a PDF, to cut the font to it).</summary>
+    public HashSet<int>? Codepoints { get; init; }
+
     public new void DrawText(ScreenPoint p, string text, OxyColor fill, string? fontFamily = null, double fontSize = 10,
         double fontWeight = 400, double rotation = 0, HorizontalAlignment horizontalAlignment = HorizontalAlignment.Left,
         VerticalAlignment verticalAlignment = VerticalAlignment.Top, OxySize? maxSize = null)
     {
         if (text is null || !fill.IsVisible()) return;
         if (text.StartsWith(OxyPlotFailurePrefix, StringComparison.Ordinal)) Failure ??= text;
+        if (Codepoints is not null)
+            for (var i = 0; i < text.Length; i += char.IsSurrogatePair(text, i) ? 2 : 1) Codepoints.Add(char.ConvertToUtf32(text, i));
 
-        using var paint = BundledFont.CreatePaint(fontSize * DpiScale, fontWeight >= FontWeights.Bold);
+        using var paint = BundledFont.CreatePaint(fontSize * DpiScale, fontWeight >= FontWeights.Bold, Typeface);
         paint.Color = new SKColor(fill.R, fill.G, fill.B, fill.A);
         var lines = SplitLines(text);
         var lineHeight = paint.GetFontMetrics(out var metrics);
@@ -62,7 +70,7 @@ internal sealed class BundledFontRenderContext : SkiaRenderContext, IRenderConte
     {
         if (text is null) return new OxySize(0, 0);
         // Measured at the output scale, as drawn, then returned in OxyPlot's device-independent units (1/96 inch).
-        using var paint = BundledFont.CreatePaint(fontSize * DpiScale, fontWeight >= FontWeights.Bold);
+        using var paint = BundledFont.CreatePaint(fontSize * DpiScale, fontWeight >= FontWeights.Bold, Typeface);
         var lines = SplitLines(text);
         var width = lines.Max(l => paint.MeasureText(l));
         return new OxySize(width / DpiScale, paint.FontSpacing * lines.Length / DpiScale);

@@ -1,3 +1,5 @@
+using SpinSim.Core.Reporting;
+
 namespace SpinSim.Figures.Report;
 
 /// <summary>
@@ -8,7 +10,7 @@ public sealed record ParameterCorrelation(IReadOnlyList<string> Names, double[,]
 
 /// <summary>
 /// Everything a fit report shows. <see cref="SvgFigure"/> is SVG markup (for instance the fit figure rendered
-/// as SVG), embedded in the page; empty for none. <see cref="Inputs"/> names each input file with the
+/// as SVG, without its table), embedded in the page; empty for none. <see cref="Inputs"/> names each input file with the
 /// SHA-256 of its bytes in hex, so that a reader can check the report belongs to the files at hand.
 /// </summary>
 public sealed record FitReportData(
@@ -25,6 +27,18 @@ public sealed record FitReportData(
     /// <summary>Heading of the error column (say what a second value in brackets is).</summary>
     public string ErrorHeading { get; init; } = "std. error";
 
-    /// <summary>The fit's setup, everything needed to run it again (the JSON report is written from the same record).</summary>
-    public SpinSim.Core.Fitting.Spectral.FitSetupRecord? Setup { get; init; }
+    /// <summary>The one-line key saying what the brackets and the ± of the table mean (<see cref="FitTable.Key"/>).</summary>
+    public string TableKey { get; init; } = "";
+
+    /// <summary>The data line for a paper (<see cref="NmrDataLine"/>); empty for none.</summary>
+    public string ReportLine { get; init; } = "";
+
+    /// <summary>
+    /// The fit's setup as the JSON report records it, flattened to key and value (<see cref="SetupTable.Flatten"/>), so
+    /// whatever the record holds appears here without a change to the page.
+    /// </summary>
+    public IReadOnlyList<(string Key, string Value)> Setup { get; init; } = [];
+
+    /// <summary>Shown at the top in a banner when set: the fit did not converge, or was stopped.</summary>
+    public string? Banner { get; init; }
 }

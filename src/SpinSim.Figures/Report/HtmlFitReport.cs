@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Xml;
 using System.Xml.Linq;
+using SpinSim.Core.Reporting;
 
 namespace SpinSim.Figures.Report;
 
@@ -17,6 +18,13 @@ public static class HtmlFitReport
     /// <summary>Correlations at least this strong (off the diagonal) are marked: the data barely separate the pair.</summary>
     public const double StrongCorrelation = 0.9;
 
+    /// <summary>What the covariance standard errors assume, and why they are optimistic for a spectrum.</summary>
+    public const string CovarianceCaveat =
+        "The standard errors come from the covariance matrix s² (JᵀJ)⁻¹, which assumes independent points. Neighbouring " +
+        "points of a digitised spectrum are correlated (oversampled lines, filtered noise), so these errors are optimistic; " +
+        "the block-bootstrap errors (fit --bootstrap N), where given, allow for that. Neither covers baseline or lineshape " +
+        "distortions, impurities or referencing errors.";
+
     /// <summary>The sentence every report carries, so that a fit is not mistaken for a measurement.</summary>
     public const string Caution =
         "Fitted values support, but do not replace, measured evidence: check them against the spectrum, " +
@@ -26,21 +34,33 @@ public static class HtmlFitReport
     // reads entities, and only text without those three means the same to both.
     private const string Css = """
         body { font-family: "DejaVu Sans", "Segoe UI", Helvetica, Arial, sans-serif; color: #111; background: #fff;
-               max-width: 62rem; margin: 2rem auto; padding: 0 1rem; line-height: 1.45; }
+               max-width: 62rem; margin: 2rem auto; padding: 0 1rem; line-height: 1.45; overflow-wrap: anywhere; }
         h1 { font-size: 1.5rem; margin-bottom: 0.3rem; }
         h2 { font-size: 1.15rem; margin-top: 2rem; border-bottom: 1px solid #999; padding-bottom: 0.2rem; }
         .caution { border-left: 4px solid #D55E00; background: #fbefe6; padding: 0.6rem 0.9rem; }
-        .figure svg { max-width: 100%; height: auto; border: 1px solid #ddd; }
+        .banner { border: 2px solid #D55E00; background: #fbe3d3; padding: 0.6rem 0.9rem; font-weight: bold; }
+        .figure svg { width: 100%; height: auto; border: 1px solid #ddd; }
         table { border-collapse: collapse; margin: 0.5rem 0; }
         th, td { padding: 0.25rem 0.7rem; border-bottom: 1px solid #ddd; text-align: left; vertical-align: top; }
         th { border-bottom: 2px solid #444; }
+        th.group { border-bottom: 1px solid #999; padding-top: 0.8rem; font-style: italic; font-weight: normal; }
         td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
         td.strong { font-weight: bold; background: #d6e6f2; }
+        table.setup td:first-child { white-space: nowrap; }
+        table.correlation { table-layout: fixed; width: 100%; font-size: 0.72rem; }
+        table.correlation th, table.correlation td { padding: 0.15rem 0.2rem; }
+        table.correlation th.name { width: 11rem; text-align: right; font-weight: normal; border-bottom: 1px solid #ddd; }
+        table.correlation th.col { writing-mode: vertical-rl; transform: rotate(180deg); text-align: left; font-weight: normal;
+                                   vertical-align: bottom; white-space: nowrap; border-bottom: none; }
+        table.correlation td.num { white-space: nowrap; overflow: hidden; }
+        .dataline { font-family: "DejaVu Serif", Georgia, serif; background: #f4f4f4; padding: 0.6rem 0.9rem; }
         code { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.85rem; word-break: break-all; }
         ul.warnings li { margin: 0.2rem 0; }
         .note { color: #444; font-size: 0.9rem; }
         footer { margin-top: 2.5rem; color: #444; font-size: 0.85rem; border-top: 1px solid #999; padding-top: 0.5rem; }
-        @media print { body { margin: 0; max-width: none; } .figure svg { border: none; } }
+        @page { size: A4; margin: 15mm; }
+        @media print { body { margin: 0; max-width: none; padding: 0; } .figure svg { border: none; }
+                       table, .figure { page-break-inside: avoid; } h2 { page-break-after: avoid; } }
         """;
 
     /// <summary>The report page, starting with the HTML5 doctype.</summary>
@@ -52,18 +72,41 @@ public static class HtmlFitReport
         var version = data.Version ?? "";
         var created = data.Created.ToString("yyyy-MM-dd HH:mm:ss zzz", CultureInfo.InvariantCulture);
 
-        var body = E("body",
-            E("h1", title),
-            E("p", new XAttribute("class", "caution"), E("strong", "Caution. "), Caution));
+        var body = E("body", E("h1", title));
+        if (!string.IsNullOrWhiteSpace(data.Banner))
+            body.Add(E("p", new XAttribute("class", "banner"), new XAttribute("role", "alert"), data.Banner));
+        body.Add(E("p", new XAttribute("class", "caution"), E("strong", "Caution. "), Caution));
 
         if (!string.IsNullOrWhiteSpace(data.SvgFigure))
             body.Add(E("div", new XAttribute("class", "figure"), ParseSvg(data.SvgFigure)));
 
         body.Add(E("h2", "Fitted parameters"));
-        body.Add(data.Parameters is { Count: > 0 } parameters
-            ? Table(["parameter", "value", data.ErrorHeading, "unit"],
-                parameters.Select(p => new[] { Cell(p.Name), Num(p.Value), Num(p.StdError), Cell(p.Unit) }))
-            : E("p", "No parameters were fitted."));
+        if (data.Parameters is { Count: > 0 } parameters)
+        {
+            var bootstrap = parameters.Any(p => p.Bootstrap.Length > 0);
+            string[] header = bootstrap ? ["parameter", "value (standard error)", "bootstrap"] : ["parameter", "value (standard error)"];
+            var rows = new List<XElement>();
+            foreach (var group in parameters.GroupBy(p => p.Group))
+            {
+                rows.Add(E("tr", E("th", new XAttribute("class", "group"), new XAttribute("colspan", header.Length), ParameterDisplay.GroupHeading(group.Key))));
+                rows.AddRange(group.Select(p => E("tr", bootstrap
+                    ? new[] { Cell(p.Label), Num(p.Value), Num(p.Bootstrap) }
+                    : [Cell(p.Label), Num(p.Value)])));
+            }
+            body.Add(E("table", E("thead", E("tr", header.Select(h => E("th", h)))), E("tbody", rows)));
+            if (!string.IsNullOrWhiteSpace(data.TableKey)) body.Add(E("p", new XAttribute("class", "note"), data.TableKey));
+        }
+        else body.Add(E("p", "No parameters were fitted."));
+        body.Add(E("p", new XAttribute("class", "note"), E("strong", "On the standard errors. "), CovarianceCaveat));
+
+        if (!string.IsNullOrWhiteSpace(data.ReportLine))
+        {
+            body.Add(E("h2", "Data line"));
+            body.Add(E("p", new XAttribute("class", "dataline"), data.ReportLine));
+            body.Add(E("p", new XAttribute("class", "note"),
+                "In the usual form of an experimental section, from the fitted values: first-order resonances by the n + 1 rule, " +
+                "strongly coupled ones named as parts of their spin system, digits limited by the standard errors. Check it against the spectrum."));
+        }
 
         if (data.Statistics is { Count: > 0 } statistics)
         {
@@ -71,25 +114,25 @@ public static class HtmlFitReport
             body.Add(Table(["quantity", "value"], statistics.Select(s => new[] { Cell(s.Label), Num(s.Value) })));
         }
 
+        body.Add(E("h2", "Setup (enough to run the fit again)"));
+        body.Add(data.Setup is { Count: > 0 } setup
+            ? E("table", new XAttribute("class", "setup"), E("thead", E("tr", E("th", "entry"), E("th", "value"))),
+                E("tbody", setup.Select(s => E("tr", Cell(s.Key), E("td", E("code", s.Value))))))
+            : E("p", "The JSON report of this fit records no setup."));
+
         if (data.Correlation is { } correlation)
         {
             body.Add(E("h2", "Parameter correlations"));
             body.Add(CorrelationTable(correlation));
             body.Add(E("p", new XAttribute("class", "note"),
                 string.Create(CultureInfo.InvariantCulture,
-                    $"Bold, shaded cells mark |r| ≥ {StrongCorrelation:0.0#}: the data barely separate that pair, so their values and errors are less certain than the table alone suggests.")));
+                    $"Lower triangle: each pair once. Bold, shaded cells mark |r| ≥ {StrongCorrelation:0.0#}: the data barely separate that pair, so their values and errors are less certain than the table alone suggests.")));
         }
 
         body.Add(E("h2", "Warnings"));
         body.Add(data.Warnings is { Count: > 0 } warnings
             ? E("ul", new XAttribute("class", "warnings"), warnings.Select(w => E("li", w ?? "")))
             : E("p", "None."));
-
-        if (data.Setup is { } setup)
-        {
-            body.Add(E("h2", "Setup (enough to run the fit again)"));
-            body.Add(Table(["item", "value"], setup.Rows().Select(r => new[] { Cell(r.Label), Cell(r.Value) })));
-        }
 
         body.Add(E("h2", "Inputs"));
         body.Add(data.Inputs is { Count: > 0 } inputs
@@ -136,15 +179,20 @@ public static class HtmlFitReport
         if (m.GetLength(0) != names.Count || m.GetLength(1) != names.Count)
             throw new ArgumentException($"the correlation matrix is {m.GetLength(0)} x {m.GetLength(1)} but there are {names.Count} names; it must be square with one row per name", nameof(correlation));
 
-        var rows = Enumerable.Range(0, names.Count).Select(i =>
-            new[] { E("th", names[i] ?? "") }.Concat(Enumerable.Range(0, names.Count).Select(j =>
+        // Lower triangle without the diagonal: each pair once, n - 1 columns, so the table is half as wide.
+        var rows = Enumerable.Range(1, names.Count - 1).Select(i =>
+            E("tr", new[] { E("th", new XAttribute("class", "name"), names[i] ?? "") }.Concat(Enumerable.Range(0, names.Count - 1).Select(j =>
             {
+                if (j >= i) return E("td", "");
                 var r = m[i, j];
-                var text = double.IsFinite(r) ? r.ToString("0.00", CultureInfo.InvariantCulture) : "–";
-                var strong = i != j && double.IsFinite(r) && Math.Abs(r) >= StrongCorrelation;
+                var text = double.IsFinite(r) ? Typography.TrueMinus(r.ToString("0.00", CultureInfo.InvariantCulture)) : "–";
+                var strong = double.IsFinite(r) && Math.Abs(r) >= StrongCorrelation;
                 return E("td", new XAttribute("class", strong ? "num strong" : "num"), text);
-            })).ToArray());
-        return Table(["", .. names.Select(n => n ?? "")], rows);
+            }))));
+        return E("table", new XAttribute("class", "correlation"),
+            E("thead", E("tr", new[] { E("th", new XAttribute("class", "name"), "") }
+                .Concat(names.Take(names.Count - 1).Select(n => E("th", new XAttribute("class", "col"), n ?? ""))))),
+            E("tbody", rows));
     }
 
     // The figure is parsed rather than pasted, so malformed markup fails here instead of breaking the page,

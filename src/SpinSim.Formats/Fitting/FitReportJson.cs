@@ -9,7 +9,8 @@ namespace SpinSim.Formats.Fitting;
 /// The fit report as JSON: <c>converged</c>, <c>rms</c>, <c>parameters</c> (each with <c>name</c>, <c>kind</c>, <c>nuclei</c>,
 /// <c>value</c>, <c>std_error</c>, <c>unit</c>, <c>varied</c>, <c>tied_with</c>, <c>at_bound</c>), the correlation matrix,
 /// statistics, warnings, <c>data</c> (per trace: <c>source</c>, <c>kind</c> "spectrum" or "fid", the <c>processing</c> steps
-/// with their values, phases in degrees, and <c>reference_ppm_shift</c>) and the inputs with their SHA-256.
+/// with their values, phases in degrees, and <c>reference_ppm_shift</c>), the data line for a paper (<c>report_line</c>)
+/// and the inputs with their SHA-256.
 /// </summary>
 public static class FitReportJson
 {
@@ -33,7 +34,9 @@ public static class FitReportJson
         ["reference_ppm_shift"] = origin.Processing?.ReferencePpmShift ?? 0,
     };
 
-    public static string Write(SpectrumFitResult result, IEnumerable<(string Name, string Sha256)> inputs, string version, DateTimeOffset created)
+    /// <param name="reportLine">The data line for a paper (<c>report_line</c>; SpinSim.Core.Reporting.NmrDataLine), or null.</param>
+    public static string Write(SpectrumFitResult result, IEnumerable<(string Name, string Sha256)> inputs, string version, DateTimeOffset created,
+        string? reportLine = null)
     {
         var root = new JsonObject
         {
@@ -80,6 +83,7 @@ public static class FitReportJson
                 ["matrix"] = new JsonArray(Enumerable.Range(0, result.FreeNames.Count).Select(i => (JsonNode)new JsonArray(
                     Enumerable.Range(0, result.FreeNames.Count).Select(j => (JsonNode?)(double.IsFinite(result.Correlation[i, j]) ? JsonValue.Create(result.Correlation[i, j]) : null)).ToArray())).ToArray()),
             },
+            ["report_line"] = reportLine,
             ["warnings"] = new JsonArray(result.Warnings.Select(w => (JsonNode)JsonValue.Create(w)!).ToArray()),
             ["note"] = "standard errors are s^2 (J^T J)^-1 with s^2 = RSS / (n - p); neighbouring points of a digitised spectrum are not independent, so they are optimistic",
             ["setup"] = result.Setup is { } setup ? Setup(setup) : null,

@@ -24,6 +24,11 @@ public class DemoTests
         var actualLines = actual.RootElement.GetProperty("simulated").EnumerateArray().ToDictionary(s => s.GetProperty("system").GetString()!, s => s.GetProperty("lines").GetInt32());
         Assert.Equal(expectedLines, actualLines);
 
+        // Data lines of the simulated systems: the same text (they come from the input values alone).
+        string?[] DataLines(JsonDocument d) => d.RootElement.GetProperty("simulated").EnumerateArray().Select(s => s.GetProperty("data_line").GetString()).ToArray();
+        Assert.Equal(DataLines(expected), DataLines(actual));
+        Assert.True(File.Exists(Path.Combine(outDir, "data-lines.txt")));
+
         // Fitted values: within 1e-6 relative or 1e-9 absolute, and within a tenth of their standard error.
         var expectedFits = expected.RootElement.GetProperty("fits").EnumerateArray().ToList();
         var actualFits = actual.RootElement.GetProperty("fits").EnumerateArray().ToList();

@@ -50,9 +50,15 @@ public class FitCliTests
         Assert.True(new FileInfo(figure).Length > 1000);
         var page = File.ReadAllText(html);
         XDocument.Parse(page[page.IndexOf("<html", StringComparison.Ordinal)..]);
-        Assert.Contains("j:HB-HX", page);
+        Assert.Contains("J(HB,HX)/Hz", page);
         Assert.Matches($@"starts that joined another's path</t[dh]>\s*<td[^>]*>{joined}<", page);
         Assert.Contains("<svg", page);
+        // The data line: in the text after the table, in the JSON and in the page (ABX: first order does not hold).
+        var line = root.GetProperty("report_line").GetString()!;
+        Assert.StartsWith("¹H NMR (100 MHz): δ 4.08", line);
+        Assert.Contains("(ABX part, 1H, J = −16.", line);
+        Assert.Contains($"data line: {line}", o);
+        Assert.Contains(line, page);
         foreach (var f in new[] { data, start, report, system, figure, html }) File.Delete(f);
     }
 
@@ -63,7 +69,7 @@ public class FitCliTests
         File.AppendAllText(start, "\n[fit]\nregions_ppm = [[4.4, 3.8], [3.0, 2.3]]\nfix = [\"j:HA-HB\"]\nstarts = 1\n");
         var (code, o, err) = CliTests.Run("fit", start, "--data", data, "-q");
         Assert.True(code == 0, err);
-        Assert.Matches(@"j:HA-HB\s+-16\.4000\s+fixed", o);
+        Assert.Matches(@"J\(HA,HB\)/Hz\s+-16\.400 \(fixed\)", o);
 
         File.AppendAllText(start, "tie = [[\"shift:HA\", \"shift:HQ\"]]\n");
         (code, _, err) = CliTests.Run("fit", start, "--data", data, "-q");
@@ -85,7 +91,7 @@ public class FitCliTests
         var report = Temp(".json");
         var (code, o, err) = CliTests.Run("fit", start, "--data", data, "--starts", "1", "-q", "--bootstrap", "20", "--report", report);
         Assert.True(code == 0, err + o);
-        Assert.Contains("Bootstrap errors (in brackets)", o);
+        Assert.Contains("±: the block-bootstrap standard error", o);
         using var json = JsonDocument.Parse(File.ReadAllText(report));
         var bootstrap = json.RootElement.GetProperty("bootstrap");
         Assert.Equal(20, bootstrap.GetProperty("replicates").GetInt32());

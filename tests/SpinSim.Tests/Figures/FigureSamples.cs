@@ -1,3 +1,4 @@
+using SpinSim.Core.Reporting;
 using SpinSim.Core.Traces;
 using SpinSim.Figures;
 using SpinSim.Figures.Plots;
@@ -45,7 +46,7 @@ internal static class FigureSamples
         var fitted = measured.ShiftPpm.Select(p => Lorentzians(p, 0.0105, 0.0004)).ToArray();
         var residual = measured.Intensity.Zip(fitted, (m, f) => m - f).ToArray();
         var rows = Enumerable.Range(0, parameters)
-            .Select(i => new ParameterRow($"δ(H{i + 1})", $"{7.26 - i * 0.9:0.0000}", "0.0003", "ppm"))
+            .Select(i => new ParameterRow($"δ(H{i + 1})/ppm", $"{7.26 - i * 0.9:0.0000}(3)", "", ParameterGroup.Spin))
             .ToArray();
         return new FitFigureData(measured, fitted, residual, rows, "Fit of a synthetic spectrum");
     }

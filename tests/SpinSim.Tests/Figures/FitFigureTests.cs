@@ -21,7 +21,7 @@ public sealed class FitFigureTests
     {
         using var probe = Draw(FigureSamples.Fit(), "fit.png");
         var area = probe.PlotArea;
-        var (top, bottom) = probe.Band("main");
+        var (top, bottom) = probe.Band(FitFigure.MainAxis(0));
         var region = new SkiaSharp.SKRectI(area.Left + 4, top, area.Right - 4, bottom);
         var expected = probe.Column("ppm", FigureSamples.TallestPpm);
 
@@ -38,8 +38,8 @@ public sealed class FitFigureTests
     public void Residual_panel_lies_below_the_spectra_and_is_drawn()
     {
         using var probe = Draw(FigureSamples.Fit(), "fit-residual.png");
-        var (mainTop, mainBottom) = probe.Band("main");
-        var (residualTop, residualBottom) = probe.Band("residual");
+        var (mainTop, mainBottom) = probe.Band(FitFigure.MainAxis(0));
+        var (residualTop, residualBottom) = probe.Band(FitFigure.ResidualAxis(0));
         Assert.True(residualTop > mainBottom, "the residual panel must sit below the spectra");
 
         var area = probe.PlotArea;
@@ -48,13 +48,16 @@ public sealed class FitFigureTests
     }
 
     [Fact]
-    public void Parameter_table_is_drawn_beside_the_plot()
+    public void Parameter_table_is_drawn_under_the_plot()
     {
         using var probe = Draw(FigureSamples.Fit(), "fit-table.png");
         var area = probe.PlotArea;
-        var text = probe.Count(new(area.Right + 5, area.Top, probe.Width, area.Bottom), PixelProbe.IsDark);
+        var axisBottom = area.Bottom + (int)(FitFigure.AxisSpace(FigureStyleFont) * probe.Scale);
+        var text = probe.Count(new(area.Left, axisBottom, area.Right, probe.Height), PixelProbe.IsDark);
         Assert.True(text > 1000, $"only {text} dark pixels where the table should be");
     }
+
+    private static double FigureStyleFont => Options.FontSizePt * 96 / 72;
 
     [Fact]
     public void Text_is_drawn_in_the_axis_label_areas()
@@ -62,24 +65,29 @@ public sealed class FitFigureTests
         using var probe = Draw(FigureSamples.Fit(), "fit-axes.png");
         var area = probe.PlotArea;
         Assert.True(probe.Count(new(area.Left, area.Bottom + 3, area.Right, probe.Height), PixelProbe.IsDark) > 800);
-        Assert.True(probe.Count(new(0, area.Top, area.Left - 3, area.Bottom), PixelProbe.IsDark) > 500);
+        // No intensity axis (arbitrary units): the residual band is named inside the plot instead.
+        var (residualTop, residualBottom) = probe.Band(FitFigure.ResidualAxis(0));
+        Assert.True(probe.Count(new(area.Left, residualTop, area.Left + area.Width / 8, residualBottom), PixelProbe.IsDark) > 100);
     }
 
     [Fact]
-    public void A_long_parameter_list_is_shortened_to_fit_the_height()
+    public void A_parameter_list_too_long_for_the_figure_is_left_out_whole_and_the_figure_says_so()
     {
         var options = new FigureOptions { WidthMm = 170, HeightMm = 80, Dpi = 200 };
-        var model = FitFigure.Create(FigureSamples.Fit(parameters: 80), options);
+        var (model, layout) = FitFigure.Build(FigureSamples.Fit(parameters: 80), options);
         FigureSamples.Keep("fit-many-parameters.png", FigureRenderer.Render(model, FigureFormat.Png, options));
         var svg = System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(model, FigureFormat.Svg, options));
-        Assert.Contains("more", svg);
-        Assert.DoesNotContain("δ(H80)", svg);
+        Assert.False(layout.TableShown);
+        Assert.Equal(80, layout.RowsLeftOut);
+        Assert.DoesNotContain("δ(H1)/ppm", svg);
+        Assert.Contains("left out", svg);
     }
 
     [Fact]
     public void Arrays_off_the_measured_axis_are_refused()
     {
-        var data = FigureSamples.Fit() with { Residual = new double[10] };
+        var sample = FigureSamples.Fit();
+        var data = sample with { Traces = [sample.Traces[0] with { Residual = new double[10] }] };
         var e = Assert.Throws<ArgumentException>(() => FitFigure.Create(data, Options));
         Assert.Contains("Residual has 10 points", e.Message);
     }
@@ -88,8 +96,8 @@ public sealed class FitFigureTests
     public void Small_residual_keeps_the_scale_of_the_spectra()
     {
         var model = FitFigure.Create(FigureSamples.Fit(), Options);
-        var main = model.Axes.Single(a => a.Key == "main");
-        var residual = model.Axes.Single(a => a.Key == "residual");
+        var main = model.Axes.Single(a => a.Key == FitFigure.MainAxis(0));
+        var residual = model.Axes.Single(a => a.Key == FitFigure.ResidualAxis(0));
         var mainPerFraction = (main.Maximum - main.Minimum) / (main.EndPosition - main.StartPosition);
         var residualPerFraction = (residual.Maximum - residual.Minimum) / (residual.EndPosition - residual.StartPosition);
         Assert.Equal(mainPerFraction, residualPerFraction, 9);

@@ -1,6 +1,7 @@
 using System.Text;
 using System.Text.RegularExpressions;
 using System.Xml.Linq;
+using SpinSim.Core.Reporting;
 using SpinSim.Figures;
 using SpinSim.Figures.Plots;
 using SpinSim.Figures.Report;
@@ -18,13 +19,19 @@ public sealed class HtmlFitReportTests
         return new FitReportData(
             "Fit of <sample> & friends",
             svg,
-            [new("δ(H1)", "7.2604", "0.0003", "ppm"), new("J(H1,H2)", "7.12", "0.04", "Hz")],
+            [new("δ(H1)/ppm", "7.2604(3)", "±0.0004", ParameterGroup.Spin), new("J(H1,H2)/Hz", "7.12(4)", "±0.05", ParameterGroup.Spin),
+             new("scale", "1.0012(4)", "±0.0005", ParameterGroup.Nuisance)],
             ["line width fixed at 0.8 Hz", "residual shows a baseline roll < 1 %"],
             [("spectrum.jdx", new string('a', 64)), ("system.toml", new string('b', 64))],
             "0.1.0",
             new DateTimeOffset(2025, 3, 4, 5, 6, 7, TimeSpan.FromHours(1)),
             [("RMS residual", "0.0041"), ("points", "8192")],
-            new ParameterCorrelation(["δ(H1)", "J(H1,H2)"], new[,] { { 1.0, 0.95 }, { 0.95, 1.0 } }));
+            new ParameterCorrelation(["δ(H1)", "J(H1,H2)", "scale"], new[,] { { 1.0, 0.95, 0.1 }, { 0.95, 1.0, -0.2 }, { 0.1, -0.2, 1.0 } }))
+        {
+            TableKey = "Digits in parentheses: the standard error.",
+            ReportLine = "¹H NMR (400 MHz): δ 7.260 (d, 1H, J = 7.12 Hz).",
+            Setup = SetupTable.Flatten(System.Text.Json.Nodes.JsonNode.Parse("""{"regions_ppm": [[7.6, 6.8]], "lineshape": "lorentzian", "bounds": {"shift:H1": [7.2, 7.5]}}""")),
+        };
     }
 
     private static XDocument Parse(string html)
@@ -45,10 +52,12 @@ public sealed class HtmlFitReportTests
         Assert.Single(doc.Descendants(XNamespace.Get("http://www.w3.org/2000/svg") + "svg"));
 
         var parameterTable = doc.Descendants(X + "table").First();
-        var header = parameterTable.Descendants(X + "th").Select(t => t.Value).ToArray();
-        Assert.Equal(["parameter", "value", "std. error", "unit"], header);
+        var header = parameterTable.Element(X + "thead")!.Descendants(X + "th").Select(t => t.Value).ToArray();
+        Assert.Equal(["parameter", "value (standard error)", "bootstrap"], header);
         var cells = parameterTable.Descendants(X + "td").Select(t => t.Value).ToArray();
-        Assert.Equal(["δ(H1)", "7.2604", "0.0003", "ppm", "J(H1,H2)", "7.12", "0.04", "Hz"], cells);
+        Assert.Equal(["δ(H1)/ppm", "7.2604(3)", "±0.0004", "J(H1,H2)/Hz", "7.12(4)", "±0.05", "scale", "1.0012(4)", "±0.0005"], cells);
+        var groups = parameterTable.Descendants(X + "th").Where(t => (string?)t.Attribute("class") == "group").Select(t => t.Value).ToArray();
+        Assert.Equal([ParameterDisplay.GroupHeading(ParameterGroup.Spin), ParameterDisplay.GroupHeading(ParameterGroup.Nuisance)], groups);
 
         var text = doc.Root.Value;
         Assert.Contains("Fit of <sample> & friends", text);
@@ -61,6 +70,43 @@ public sealed class HtmlFitReportTests
         Assert.Contains("RMS residual", text);
         Assert.Contains(HtmlFitReport.Caution, text);
         Assert.Contains("do not replace", text);
+        Assert.Contains(HtmlFitReport.CovarianceCaveat, text);
+        Assert.Contains("¹H NMR (400 MHz): δ 7.260 (d, 1H, J = 7.12 Hz).", text);
+        Assert.Contains("Digits in parentheses", text);
+        Assert.DoesNotContain("did not converge", text);
+    }
+
+    [Fact]
+    public void Setup_is_shown_as_recorded_key_by_key()
+    {
+        var doc = Parse(HtmlFitReport.Render(Data()));
+        var setup = doc.Descendants(X + "table").Single(t => (string?)t.Attribute("class") == "setup");
+        var rows = setup.Element(X + "tbody")!.Elements(X + "tr").Select(r => r.Elements(X + "td").Select(c => c.Value).ToArray()).ToArray();
+        Assert.Equal(["regions_ppm", "[7.6, 6.8]"], rows[0]);
+        Assert.Equal(["lineshape", "lorentzian"], rows[1]);
+        Assert.Equal(["bounds.shift:H1", "7.2, 7.5"], rows[2]);
+    }
+
+    [Fact]
+    public void A_fit_that_did_not_converge_gets_a_banner_at_the_top()
+    {
+        var doc = Parse(HtmlFitReport.Render(Data("") with { Banner = "The fit did not converge." }));
+        var first = doc.Descendants(X + "body").Single().Elements().Skip(1).First();
+        Assert.Equal("banner", (string?)first.Attribute("class"));
+        Assert.Equal("The fit did not converge.", first.Value);
+    }
+
+    [Fact]
+    public void Correlations_are_a_lower_triangle_each_pair_once()
+    {
+        var doc = Parse(HtmlFitReport.Render(Data()));
+        var table = doc.Descendants(X + "table").Single(t => (string?)t.Attribute("class") == "correlation");
+        var columns = table.Element(X + "thead")!.Descendants(X + "th").Skip(1).Select(t => t.Value).ToArray();
+        Assert.Equal(["δ(H1)", "J(H1,H2)"], columns); // n - 1 columns: no diagonal
+        var rows = table.Element(X + "tbody")!.Elements(X + "tr")
+            .Select(r => r.Elements(X + "td").Select(c => c.Value).ToArray()).ToArray();
+        Assert.Equal(["0.95", ""], rows[0]);            // J(H1,H2) against δ(H1)
+        Assert.Equal(["0.10", "\u22120.20"], rows[1]);  // scale against both, true minus
     }
 
     [Fact]
@@ -77,7 +123,7 @@ public sealed class HtmlFitReportTests
     public void Non_void_elements_are_closed_with_an_end_tag()
     {
         // An HTML parser reads <td/> as an open <td>; only void elements may self-close outside the SVG.
-        var html = HtmlFitReport.Render(Data() with { Parameters = [new("fixed", "1", "", "")] });
+        var html = HtmlFitReport.Render(Data() with { Parameters = [new("fixed", "1", "", ParameterGroup.Spin)] });
         var outsideSvg = Regex.Replace(html, "<svg.*</svg>", "", RegexOptions.Singleline);
         var selfClosed = Regex.Matches(outsideSvg, @"<([a-z0-9]+)\b[^>]*/>").Select(m => m.Groups[1].Value).Distinct();
         Assert.All(selfClosed, name => Assert.Contains(name, new[] { "meta", "br", "hr", "img", "link" }));
@@ -88,7 +134,7 @@ public sealed class HtmlFitReportTests
     {
         var doc = Parse(HtmlFitReport.Render(Data()));
         var strong = doc.Descendants(X + "td").Where(t => ((string?)t.Attribute("class") ?? "").Contains("strong")).Select(t => t.Value).ToArray();
-        Assert.Equal(["0.95", "0.95"], strong);
+        Assert.Equal(["0.95"], strong); // once: the lower triangle
     }
 
     [Fact]

@@ -96,4 +96,24 @@ public sealed class SpectrumFigureTests
     [Fact]
     public void Nucleus_mass_number_is_written_as_a_superscript() =>
         Assert.Equal("δ(¹H) / ppm", SpectrumFigure.Simulated(FigureSamples.Trace(), null, null, Options).Axes[0].Title);
+
+    [Fact]
+    public void A_vertical_expansion_redraws_its_range_scaled_and_says_by_how_much()
+    {
+        var trace = FigureSamples.Trace();
+        var tallest = trace.Intensity.Max();
+        // A range of Lorentzian tails only (no peak between 5 and 4 ppm): small values, so a large factor.
+        var model = SpectrumFigure.Simulated(trace, null, null, Options, [new VerticalExpansion(5.0, 4.0), new VerticalExpansion(3.6, 3.4, Factor: 8)]);
+        FigureSamples.Keep("spectrum-expansion.png", FigureRenderer.Render(model, FigureFormat.Png, Options));
+        var labels = model.Annotations.OfType<OxyPlot.Annotations.TextAnnotation>().Select(a => a.Text).ToArray();
+        Assert.Contains("×8", labels);
+
+        // Auto factor: 1, 2 or 5 times a power of ten, rounded down from the one that lifts the range's top to 55 % of
+        // the tallest point, so the scaled top lies between 55 % / 2.5 and 55 % of it (exact property of that rounding).
+        var inside = Enumerable.Range(0, trace.Count).Where(i => trace.ShiftPpm[i] is >= 4.0 and <= 5.0).Select(i => trace.Intensity[i]).Max();
+        var auto = labels.Single(t => t.StartsWith('×') && t != "×8");
+        var factor = double.Parse(auto[1..], System.Globalization.CultureInfo.InvariantCulture);
+        Assert.InRange(inside * factor, 0.55 * tallest / 2.5 - 1e-12, 0.55 * tallest + 1e-12);
+        Assert.Contains(Math.Round(factor / Math.Pow(10, Math.Floor(Math.Log10(factor)))), new[] { 1.0, 2.0, 5.0 });
+    }
 }
