@@ -38,7 +38,8 @@ public static class CouplingSigns
     /// <summary>
     /// Groups of varied couplings whose relative signs the spectrum may determine: the couplings with at least one end in
     /// a strongly coupled cluster (|J / delta nu| above <paramref name="strongRatio"/>, the engine's own cut), merged
-    /// where a coupling joins two clusters. Groups of one coupling are left out (one sign alone never shows).
+    /// where a coupling joins two clusters. A group of one coupling has no relative sign to find (one sign alone never
+    /// shows) and gets no patterns.
     /// </summary>
     public static IReadOnlyList<SignGroup> Groups(SpinSystem system, IReadOnlySet<int> varied, double strongRatio = 0.05)
     {
@@ -61,8 +62,7 @@ public static class CouplingSigns
             if (a >= 0 && b >= 0) parent[Find(a)] = Find(b);
             members.Add((c, a >= 0 ? a : b));
         }
-        return members.GroupBy(m => Find(m.Cluster)).Select(g => new SignGroup(g.Select(m => m.Coupling).Order().ToArray()))
-            .Where(g => g.Couplings.Count > 1).ToArray();
+        return members.GroupBy(m => Find(m.Cluster)).Select(g => new SignGroup(g.Select(m => m.Coupling).Order().ToArray())).ToArray();
     }
 
     /// <summary>
@@ -74,6 +74,7 @@ public static class CouplingSigns
     {
         var k = group.Couplings.Count;
         var patterns = new List<IReadOnlyList<int>>();
+        if (k < 2) return patterns;
         if (k <= ExhaustiveLimit)
         {
             for (var mask = 1; mask < 1 << (k - 1); mask++)
@@ -112,6 +113,12 @@ public static class CouplingSigns
             {
                 verdicts.Add(new SignVerdict(c, false, [], double.NaN, double.NaN,
                     "its nuclei are weakly coupled to everything they couple with, so the spectrum depends on |J| alone"));
+                continue;
+            }
+            if (group.Couplings.Count == 1)
+            {
+                verdicts.Add(new SignVerdict(c, false, [], double.NaN, double.NaN,
+                    "it is the only varied coupling of its strongly coupled group, and the overall sign of the couplings never shows"));
                 continue;
             }
             var partners = group.Couplings.Where(d => d != c && Math.Abs(fitted.Couplings[d].J.Value) >= NegligibleHz).ToArray();
