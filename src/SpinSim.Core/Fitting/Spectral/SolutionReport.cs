@@ -46,8 +46,6 @@ internal static class SolutionReport
         int[] Signs(double[] free) => freeOfCoupling.Select((f, c) =>
             Math.Sign(f >= 0 ? free[f] : problem.System.Couplings[c].J.Value)).ToArray();
         var signOptima = optima.Select(o => new SignOptimum(Signs(o.Free), o.Cost)).Append(new SignOptimum(Signs(best.Free), best.Cost)).ToArray();
-        if (Environment.GetEnvironmentVariable("DBG_SIGNS") == "1")
-            foreach (var o in optima.Append(best)) System.IO.File.AppendAllText("/tmp/dbg_signs.txt", $"{o.Origin}: cost {o.Cost:E6} ratio {o.Cost / best.Cost:F6} crit {critical:F6} neff {effective:F0} J=[{string.Join(", ", freeOfCoupling.Select(f => f >= 0 ? o.Free[f].ToString("F3") : "fixed"))}]\n");
         var verdicts = CouplingSigns.Judge(fittedSystem, varied, groups, signOptima, effective, p);
         string CouplingName(int c) => layout.Parameters.First(q => q.Kind == ParameterKind.JHz && q.Index == c).Name;
         var signs = verdicts.Select(v => new CouplingSignReport(CouplingName(v.Coupling), v.Determined, v.RelativeTo.Select(CouplingName).ToArray(),
