@@ -232,7 +232,8 @@ public static class FitCommand
             o.WriteLine($"{(r.Converged ? "converged" : "NOT converged")}: {r.StopReason}");
             o.WriteLine($"rms residual {r.Rms:G4} (fraction of the tallest point; {r.StartRms:G4} at the start), R-factor {r.RFactor:G4}, {r.Points} points, " +
                         $"{r.Iterations} iterations in the final run, " +
-                        (r.StartWasBest ? "the given start was the best point seen" : $"{r.StartsAtBest} of {r.Starts} starts reached the best optimum") +
+                        (r.StartWasBest ? "the given start was the best point seen"
+                            : SolutionSummary.Tried(r.Solutions) ?? $"{r.StartsAtBest} of {r.Starts} starts reached the best optimum") +
                         (r.StartsJoined > 0 ? $" ({r.StartsJoined} joined another start's path on the way)" : ""));
         }
         if (r.RmsPerTrace.Count > 1)
@@ -244,6 +245,7 @@ public static class FitCommand
         var errorWidth = r.Bootstrap is null ? 12 : 22;
         o.WriteLine($"  {"parameter",-28} {"value",14} {(r.Bootstrap is null ? "std error" : "std error (bootstrap)").PadLeft(errorWidth)}  unit");
         foreach (var row in Rows(r)) o.WriteLine($"  {row.Name,-28} {row.Value,14} {row.StdError.PadLeft(errorWidth)}  {row.Unit}");
+        foreach (var line in SolutionSummary.SignLines(r.Solutions).Concat(SolutionSummary.AlternativeLines(r.Solutions))) o.WriteLine(line);
         o.WriteLine();
         o.WriteLine("Standard errors assume independent points; neighbouring points of a spectrum are correlated, so they are optimistic.");
         if (r.Bootstrap is { } b)
