@@ -261,7 +261,8 @@ public static class FitCommand
             o.WriteLine($"{(r.Converged ? "converged" : "NOT converged")}: {r.StopReason}");
             o.WriteLine($"rms residual {r.Rms:G4} (fraction of the tallest point; {r.StartRms:G4} at the start), R-factor {r.RFactor:G4}, {r.Points} points, " +
                         $"{r.Iterations} iterations in the final run, " +
-                        (r.StartWasBest ? "the given start was the best point seen" : $"{r.StartsAtBest} of {r.Starts} starts reached the best optimum") +
+                        (r.StartWasBest ? "the given start was the best point seen"
+                            : SolutionSummary.Tried(r.Solutions) ?? $"{r.StartsAtBest} of {r.Starts} starts reached the best optimum") +
                         (r.StartsJoined > 0 ? $" ({r.StartsJoined} joined another start's path on the way)" : ""));
         }
         if (r.RmsPerTrace.Count > 1)
@@ -279,6 +280,8 @@ public static class FitCommand
             foreach (var row in group)
                 o.WriteLine($"    {row.Label.PadRight(labelWidth)} {row.Value.PadLeft(valueWidth)}  {row.Bootstrap}".TrimEnd());
         }
+        o.WriteLine();
+        foreach (var line in SolutionSummary.SignLines(r.Solutions).Concat(SolutionSummary.AlternativeLines(r.Solutions))) o.WriteLine(line);
         o.WriteLine();
         o.WriteLine(FitTable.Key(r.Bootstrap is not null));
         if (r.Bootstrap is { } b)

@@ -16,9 +16,10 @@ public static class FitReportJson
 {
     /// <summary>
     /// Version of this report's layout: 2 added <c>setup</c> (everything needed to rerun the fit), <c>rms_per_trace</c>,
-    /// <c>start_rms</c>, <c>start_was_best</c> and <c>overlay</c>.
+    /// <c>start_rms</c>, <c>start_was_best</c> and <c>overlay</c>; 3 added <c>solutions</c> (what the sign search tried, the
+    /// alternative solutions) and, per coupling, <c>relative_sign</c> with its misfit ratio.
     /// </summary>
-    public const int SchemaVersion = 2;
+    public const int SchemaVersion = 3;
 
     /// <summary>How one fitted trace was made from its file: kind, processing steps and values, re-referencing shift.</summary>
     public static JsonObject DataNode(SpinSim.Core.Traces.TraceOrigin origin) => new()
@@ -63,7 +64,7 @@ public static class FitReportJson
                 ["converged"] = b.Converged,
                 ["block_points"] = b.BlockPoints,
             } : null,
-            ["parameters"] = new JsonArray(result.Parameters.Select((p, i) => (JsonNode)new JsonObject
+            ["parameters"] = new JsonArray(result.Parameters.Select((p, i) => (JsonNode)WithSign(new JsonObject
             {
                 ["name"] = p.Name,
                 ["kind"] = Kind(p.Kind),
@@ -76,7 +77,26 @@ public static class FitReportJson
                 ["varied"] = p.Varied,
                 ["tied_with"] = p.TiedWith,
                 ["at_bound"] = p.AtBound,
-            }).ToArray()),
+            }, result, p.Name)).ToArray()),
+            ["solutions"] = result.Solutions is { } sol ? new JsonObject
+            {
+                ["starts_tried"] = sol.StartsTried,
+                ["sign_patterns_tried"] = sol.SignPatternsTried,
+                ["abx_second_solutions_tried"] = sol.SecondSolutionsTried,
+                ["distinct_optima"] = sol.DistinctOptima,
+                ["effective_points"] = sol.EffectivePoints,
+                ["test"] = "Hamilton's R-factor ratio test (Acta Cryst. 18, 502, 1965) at 5 %, on the effective number of independent points",
+                ["alternatives"] = new JsonArray(sol.Alternatives.Select(a => (JsonNode)new JsonObject
+                {
+                    ["misfit_ratio"] = a.MisfitRatio,
+                    ["probability"] = a.Probability,
+                    ["reached_from"] = a.Origin,
+                    ["differences"] = new JsonArray(a.Differences.Select(d => (JsonNode)new JsonObject
+                    {
+                        ["name"] = d.Name, ["unit"] = d.Unit, ["best"] = d.Best, ["alternative"] = d.Alternative,
+                    }).ToArray()),
+                }).ToArray()),
+            } : null,
             ["correlation"] = new JsonObject
             {
                 ["names"] = new JsonArray(result.FreeNames.Select(n => (JsonNode)JsonValue.Create(n)!).ToArray()),
@@ -93,6 +113,22 @@ public static class FitReportJson
             ["created"] = created.ToString("O"),
         };
         return root.ToJsonString(new JsonSerializerOptions { WriteIndented = true, Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
+    }
+
+    /// <summary>
+    /// A coupling's relative sign as the search found it: <c>relative_sign</c> ("determined" or "undetermined"),
+    /// <c>sign_relative_to</c>, <c>sign_misfit_ratio</c>, <c>sign_probability</c>, <c>sign_reason</c>. Nothing for other
+    /// parameters or without a search.
+    /// </summary>
+    private static JsonObject WithSign(JsonObject o, SpectrumFitResult result, string name)
+    {
+        if (result.Solutions?.Signs.FirstOrDefault(v => v.Parameter == name) is not { } v) return o;
+        o["relative_sign"] = v.Determined ? "determined" : "undetermined";
+        o["sign_relative_to"] = new JsonArray(v.RelativeTo.Select(n => (JsonNode)JsonValue.Create(n)!).ToArray());
+        o["sign_misfit_ratio"] = double.IsFinite(v.MisfitRatio) ? v.MisfitRatio : null;
+        o["sign_probability"] = double.IsFinite(v.Probability) ? v.Probability : null;
+        o["sign_reason"] = v.Reason;
+        return o;
     }
 
     private static JsonObject Setup(FitSetupRecord s) => new()

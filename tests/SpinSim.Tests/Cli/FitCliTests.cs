@@ -204,7 +204,7 @@ public class FitCliTests
         Assert.True(code == 0, err);
         using var json = JsonDocument.Parse(File.ReadAllText(report));
         // The report holds the setup needed to rerun the fit: the regions as given, the field from the data, the command.
-        Assert.Equal(2, json.RootElement.GetProperty("schema_version").GetInt32());
+        Assert.Equal(3, json.RootElement.GetProperty("schema_version").GetInt32());
         var setup = json.RootElement.GetProperty("setup");
         var trace = setup.GetProperty("traces")[0];
         Assert.False(trace.GetProperty("regions_automatic").GetBoolean());
@@ -226,6 +226,14 @@ public class FitCliTests
         Assert.InRange(Math.Abs(Value("j:H2'-H6'")), 1, 3);
         Assert.InRange(Math.Abs(Value("j:H2'-H5'")), 0, 1);
         Assert.InRange(Value("shift:H5'"), 6.75, 6.85);
+        // The report states each coupling's relative sign, and what the sign search tried (H2' and H6' are strongly
+        // coupled at 400 MHz, so all three couplings touch that cluster and 2^(3-1) - 1 patterns are tried).
+        foreach (var name in new[] { "j:H5'-H6'", "j:H2'-H6'", "j:H2'-H5'" })
+        {
+            var p = json.RootElement.GetProperty("parameters").EnumerateArray().Single(q => q.GetProperty("name").GetString() == name);
+            Assert.Contains(p.GetProperty("relative_sign").GetString(), new[] { "determined", "undetermined" });
+        }
+        Assert.Equal(3, json.RootElement.GetProperty("solutions").GetProperty("sign_patterns_tried").GetInt32());
         File.Delete(start);
         File.Delete(report);
     }

@@ -177,7 +177,10 @@ public class SpectrumFitTests
             var y = clean.Intensity.ToArray();
             SpinSim.Core.Spectrum.NoiseGenerator.AddGaussian(y, 0.01 * y.Max(), 1000 + draw);
             var trace = new SpinSim.Core.Traces.SpectrumTrace(clean.ShiftPpm.ToArray(), y, 100, "1H", clean.Origin);
-            var result = SpectrumFitter.Fit(Problem(truth, trace, new FitSetup { Regions = regions }, 0.8), new SpectrumFitOptions(Starts: 1, Continuation: false));
+            // The linearised errors describe one optimum: no sign search, which may land a rare draw on the sign variant
+            // that the noise happens to favour (the variants differ by more than the noise in the other couplings).
+            var result = SpectrumFitter.Fit(Problem(truth, trace, new FitSetup { Regions = regions }, 0.8),
+                new SpectrumFitOptions(Starts: 1, Continuation: false, SignSearch: false));
             foreach (var n in names)
             {
                 var p = result.Parameters.Single(q => q.Name == n);

@@ -57,6 +57,9 @@ public sealed record SpectrumFitResult
         return this with { Bootstrap = bootstrap, Warnings = warnings };
     }
 
+    /// <summary>The relative-sign search and alternative solutions (null when the search was off or the fit was stopped).</summary>
+    public SolutionSearch? Solutions { get; init; }
+
     /// <summary>Starts that came onto another start's path during a broadened stage and share its outcome (counted in <see cref="StartsAtBest"/> with it).</summary>
     public int StartsJoined { get; init; }
     public required IReadOnlyList<string> Warnings { get; init; }

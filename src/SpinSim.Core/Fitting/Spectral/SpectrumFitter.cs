@@ -34,6 +34,8 @@ public sealed record SpectrumFitProblem(
 /// <param name="Continuation">Fit broadened copies of data and model first, narrowing in stages down to none.</param>
 /// <param name="JoinStarts">Let a start that comes onto another start's path during a broadened stage stop and share
 /// its outcome (see <see cref="SpectrumFitter.JoinFraction"/>); off, every start runs every stage.</param>
+/// <param name="SignSearch">After the first convergence, refit every relative sign pattern of the couplings whose signs
+/// can change the spectrum, and report which relative signs the data determine (<see cref="Spectral.SignSearch"/>).</param>
 public sealed record SpectrumFitOptions(
     int Starts = 8,
     double ShiftJitterHz = 10,
@@ -44,7 +46,8 @@ public sealed record SpectrumFitOptions(
     IProgress<FitProgress>? Progress = null,
     CancellationToken Cancel = default,
     EngineOptions? Engine = null,
-    bool JoinStarts = true);
+    bool JoinStarts = true,
+    bool SignSearch = true);
 
 /// <summary>Progress of a fit: which start and stage, and the cost so far.</summary>
 public sealed record FitProgress(int Start, int Stage, int Stages, double BroadeningHz, int Iteration, double ResidualSumOfSquares);
@@ -64,18 +67,43 @@ public static class SpectrumFitter
             throw new InputException(null, null, $"the fitted regions hold {points} points, not more than the {search.Layout.FreeCount} free parameters", "Widen the regions (regions_ppm in the [fit] table)");
 
         var starts = StartPoints(problem, search.Layout, search.Options).Select(search.Aligned).ToList();
-        var outcomes = search.RunStages(starts, out var joined);
-        var bestCost = outcomes.Min(o => o.Result.ResidualSumOfSquares);
-        var atBest = outcomes.Where(o => o.Result.ResidualSumOfSquares <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
-        // Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'): keep the user's labels
-        // by taking, among the starts at the best cost, the one whose shifts moved least from the given start.
-        var best = atBest.OrderBy(o => ShiftDistance(search.Layout, o.Free, starts[0])).First();
-        return search.Finish(best.Free, best.Result, starts.Count, atBest.Count, joined);
+        var (outcomes, joined) = search.RunStarts(starts.Select((x, k) => new FitStart(x, k == 0 ? "the given start" : $"start {k + 1}")).ToList());
+        var bestCost = outcomes.Min(o => o.Cost);
+        var atBest = outcomes.Where(o => o.Cost <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
+        var best = PreferUserLabels(search.Layout, atBest, starts[0]);
+
+        // The relative signs of couplings change a second-order spectrum, and a start keeps the signs it was given:
+        // every relative pattern is refitted through the same stages, and the best point over all of them wins.
+        var optima = outcomes.ToList();
+        SignSearch.Outcome? signs = null;
+        if (search.Options.SignSearch && !search.Options.Cancel.IsCancellationRequested)
+        {
+            signs = SignSearch.Run(problem.System, search.Layout, best, (search.Lower, search.Upper), list => search.RunStarts(list).Optima,
+                search.Options.Cancel);
+            optima.AddRange(signs.Optima);
+            var overall = optima.Min(o => o.Cost);
+            if (overall < best.Cost * (1 - SameOptimumTolerance))
+                best = PreferUserLabels(search.Layout, optima.Where(o => o.Cost <= overall * (1 + SameOptimumTolerance) + 1e-300).ToList(), starts[0]);
+        }
+        var result = search.Finish(best.Free, best.Result, starts.Count, atBest.Count, joined, out var polished);
+        if (signs is null || search.Options.Cancel.IsCancellationRequested) return result;
+        return SolutionReport.Attach(result, problem, search.Layout, best, polished, optima, signs,
+            (a, b) => SpinDistanceHz(problem, search.Layout, a, b), JoinFraction * StartWidthHz(problem), search.Polish);
     }
 
     /// <summary>
+    /// Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'), and every system has its
+    /// mirror with all couplings reversed: keep the user's labels and overall sign by taking, among optima at the best
+    /// cost, the one whose shifts moved least from the given start, then the one whose couplings keep most of its signs.
+    /// </summary>
+    private static FitOptimum PreferUserLabels(ParameterLayout layout, IReadOnlyList<FitOptimum> atBest, double[] start) =>
+        atBest.OrderBy(o => Math.Round(ShiftDistance(layout, o.Free, start), 9))
+            .ThenBy(o => Enumerable.Range(0, layout.FreeCount).Count(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.JHz
+                && Math.Sign(o.Free[f]) != Math.Sign(start[f]))).First();
+
+    /// <summary>
     /// One fit's fixed parts (prepared data, layout, bounds, continuation stages and their data) and the steps every
-    /// start goes through: <see cref="RunStages"/> takes any set of start points through the same stages as a normal
+    /// start goes through: <see cref="RunStarts"/> takes any set of start points through the same stages as a normal
     /// fit, so a caller can refit from a point of its own (a flipped sign, a guess) exactly as from the given start.
     /// </summary>
     internal sealed class Search
@@ -125,12 +153,12 @@ public static class SpectrumFitter
         /// stages see no difference), so it stops and shares the other's outcome. The points are taken as they are
         /// (see <see cref="Aligned"/>). Returns each start's outcome.
         /// </summary>
-        public (double[] Free, LeastSquaresResult Result)[] RunStages(IReadOnlyList<double[]> points, out int joined)
+        public (IReadOnlyList<FitOptimum> Optima, int Joined) RunStarts(IReadOnlyList<FitStart> starts)
         {
-            var current = points.Select(x => (double[])x.Clone()).ToArray();
-            var last = new LeastSquaresResult?[points.Count];
-            var follows = Enumerable.Range(0, points.Count).ToArray();
-            var running = Enumerable.Range(0, points.Count).ToList();
+            var current = starts.Select(x => (double[])x.Free.Clone()).ToArray();
+            var last = new LeastSquaresResult?[starts.Count];
+            var follows = Enumerable.Range(0, starts.Count).ToArray();
+            var running = Enumerable.Range(0, starts.Count).ToList();
             var widthHz = StartWidthHz(Problem);
             for (var k = 0; k < _stages.Count; k++)
             {
@@ -138,7 +166,8 @@ public static class SpectrumFitter
                 var stage = _stages[k];
                 Parallel.ForEach(running, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
                 {
-                    last[s] = RunStage(Problem, Layout, _stageData[k], Engine, stage, current[s], Lower, Upper, Options, s, k, _stages.Count);
+                    last[s] = RunStage(Problem, Layout, _stageData[k], Engine, stage, current[s], starts[s].Lower ?? Lower, starts[s].Upper ?? Upper,
+                        Options, s, k, _stages.Count);
                     current[s] = last[s]!.Parameters;
                 });
                 if (stage.BroadeningHz <= 0 || !Options.JoinStarts) continue;
@@ -146,22 +175,32 @@ public static class SpectrumFitter
                 var kept = new List<int>();
                 foreach (var s in running)
                 {
-                    var leader = kept.FirstOrDefault(t => SpinDistanceHz(Problem, Layout, current[s], current[t]) <= toleranceHz, -1);
+                    // A start with bounds of its own (a held sign pattern) follows only a start with the same bounds.
+                    var leader = kept.FirstOrDefault(t => SameBounds(starts[s], starts[t])
+                        && SpinDistanceHz(Problem, Layout, current[s], current[t]) <= toleranceHz, -1);
                     if (leader >= 0) follows[s] = leader; else kept.Add(s);
                 }
                 running = kept;
             }
-            joined = points.Count - running.Count;
-            return Enumerable.Range(0, points.Count).Select(s =>
+            var optima = new List<FitOptimum>();
+            for (var s = 0; s < starts.Count; s++)
             {
                 var leader = s;
                 while (follows[leader] != leader) leader = follows[leader];
-                return (Free: current[leader], Result: last[leader]!);
-            }).ToArray();
+                if (last[leader] is { } result) optima.Add(new FitOptimum(current[leader], result, starts[s].Origin));
+            }
+            return (optima, starts.Count - running.Count);
         }
 
+        private static bool SameBounds(FitStart a, FitStart b) =>
+            (a.Lower ?? []).AsSpan().SequenceEqual(b.Lower ?? []) && (a.Upper ?? []).AsSpan().SequenceEqual(b.Upper ?? []);
+
+        /// <summary>Polishes <paramref name="free"/> on all points (no broadening, every point), within the fit's bounds.</summary>
+        public LeastSquaresResult Polish(double[] free) =>
+            RunStage(Problem, Layout, Prepared, Engine, new Stage(0, 1, false), free, Lower, Upper, Options, -1, _stages.Count, _stages.Count + 1);
+
         /// <summary>
-        /// A start point made ready for <see cref="RunStages"/>: shifts aligned on the data's centroids (with
+        /// A start point made ready for <see cref="RunStarts"/>: shifts aligned on the data's centroids (with
         /// continuation) and every value within its bounds.
         /// </summary>
         public double[] Aligned(double[] x)
@@ -174,8 +213,8 @@ public static class SpectrumFitter
         /// <summary>Refits from <paramref name="free"/> through the same stages as a normal start, and polishes: one call.</summary>
         public SpectrumFitResult Refit(double[] free)
         {
-            var outcome = RunStages([Aligned(free)], out _)[0];
-            return Finish(outcome.Free, outcome.Result, 1, 1, 0);
+            var outcome = RunStarts([new FitStart(Aligned(free), "the given point")]).Optima[0];
+            return Finish(outcome.Free, outcome.Result, 1, 1, 0, out _);
         }
 
         /// <summary>Sum of squared residuals of the model at <paramref name="free"/> over all fitted points.</summary>
@@ -192,12 +231,10 @@ public static class SpectrumFitter
         /// start as given: when the search ended above it, the start itself is polished (the minimiser accepts only
         /// steps that lower the cost) and that is the result, with a plain statement that the start was the best point.
         /// </summary>
-        public SpectrumFitResult Finish(double[] free, LeastSquaresResult result, int starts, int reached, int joined)
+        public SpectrumFitResult Finish(double[] free, LeastSquaresResult result, int starts, int reached, int joined, out LeastSquaresResult polished)
         {
             var stopped = Options.Cancel.IsCancellationRequested;
-            var full = new Stage(0, 1, false);
-            var polish = stopped ? result
-                : RunStage(Problem, Layout, Prepared, Engine, full, free, Lower, Upper, Options, -1, _stages.Count, _stages.Count + 1);
+            var polish = stopped ? result : Polish(free);
             var startCost = Cost(GivenStart);
             var points = Prepared.Sum(p => p.Count);
             var searchCost = polish.ResidualSumOfSquares;
@@ -205,11 +242,11 @@ public static class SpectrumFitter
             if (!(polish.ResidualSumOfSquares <= startCost))
             {
                 // Stopped or not, the start is a point seen: a stopped fit still keeps the better of the two.
-                var fromStart = stopped ? null
-                    : RunStage(Problem, Layout, Prepared, Engine, full, GivenStart, Lower, Upper, Options, -1, _stages.Count, _stages.Count + 1);
+                var fromStart = stopped ? null : Polish(GivenStart);
                 if (fromStart is not null && fromStart.ResidualSumOfSquares <= polish.ResidualSumOfSquares)
                     (polish, startWasBest, reached) = (fromStart, true, 1);
             }
+            polished = polish;
             var finalModel = new SpectralModel(Problem.System, Layout, Prepared, Problem.Shape, Engine, 0);
             var built = SpectrumFitResult.Build(Problem, Layout, finalModel, polish.Parameters, polish, starts, reached, stopped) with
             {
@@ -408,6 +445,11 @@ public static class SpectrumFitter
         return Math.Abs(t.ShiftPpm[^1] - t.ShiftPpm[0]) * d.ObserveMHz / Math.Max(1, t.Count - 1);
     }
 
+    /// <summary>
+    /// The given start, then random perturbations of it: each varied shift moved by up to the shift jitter, each
+    /// coupling scaled by up to the coupling jitter, and, with the sign search on, the couplings whose relative signs can
+    /// change the spectrum reversed at random (each with probability one half).
+    /// </summary>
     private static List<double[]> StartPoints(SpectrumFitProblem problem, ParameterLayout layout, SpectrumFitOptions options)
     {
         var random = new Random(options.Seed);
@@ -415,6 +457,11 @@ public static class SpectrumFitter
         var (lower, upper) = layout.FreeBounds();
         var starts = new List<double[]> { first };
         var observeMHz = problem.Data[0].ObserveMHz;
+        var freeOfCoupling = SignSearch.FreeOfCoupling(layout, problem.System.Couplings.Count);
+        var reversible = options.SignSearch
+            ? CouplingSigns.Groups(problem.System, SignSearch.SearchableCouplings(layout, freeOfCoupling, (lower, upper)))
+                .Where(g => g.Couplings.Count > 1).SelectMany(g => g.Couplings.Select(c => freeOfCoupling[c])).ToHashSet()
+            : [];
         for (var s = 1; s < options.Starts; s++)
         {
             var x = (double[])first.Clone();
@@ -427,6 +474,7 @@ public static class SpectrumFitter
                     ParameterKind.JHz => x[f] * (1 + (2 * random.NextDouble() - 1) * options.CouplingJitterFraction),
                     _ => x[f],
                 };
+                if (reversible.Contains(f) && random.NextDouble() < 0.5) x[f] = -x[f];
                 x[f] = Math.Clamp(x[f], lower[f], upper[f]);
             }
             starts.Add(x);

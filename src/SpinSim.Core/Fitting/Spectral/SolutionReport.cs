@@ -1,0 +1,114 @@
+namespace SpinSim.Core.Fitting.Spectral;
+
+/// <summary>What the spectrum says about the sign of one coupling, relative to the others (see <see cref="CouplingSigns.Judge"/>).</summary>
+/// <param name="Parameter">The coupling's parameter name (<c>j:A-B</c>).</param>
+/// <param name="RelativeTo">Parameter names of the couplings its sign is determined relative to.</param>
+/// <param name="MisfitRatio">RSS of the best fit with that relation reversed over the best RSS; NaN when none was tried.</param>
+/// <param name="Probability">Probability of so large a ratio by noise alone (Hamilton's test, <see cref="MisfitComparison"/>).</param>
+public sealed record CouplingSignReport(string Parameter, bool Determined, IReadOnlyList<string> RelativeTo, double MisfitRatio,
+    double Probability, string? Reason);
+
+/// <summary>One parameter that differs between the best fit and an alternative solution.</summary>
+public sealed record ParameterDifference(string Name, string Unit, double Best, double Alternative);
+
+/// <summary>
+/// A distinct optimum whose misfit the data cannot tell from the best (<see cref="MisfitComparison"/>): the spectrum
+/// allows both. <paramref name="Origin"/> says which start or pattern reached it.
+/// </summary>
+public sealed record AlternativeSolution(double MisfitRatio, double Probability, string Origin, IReadOnlyList<ParameterDifference> Differences);
+
+/// <summary>The sign search's report on a fit: coupling signs, alternative solutions and how much was tried.</summary>
+public sealed record SolutionSearch(int StartsTried, int SignPatternsTried, int SecondSolutionsTried, int DistinctOptima,
+    double EffectivePoints, IReadOnlyList<CouplingSignReport> Signs, IReadOnlyList<AlternativeSolution> Alternatives);
+
+/// <summary>Turns the optima of a fit and its sign search into the <see cref="SolutionSearch"/> report.</summary>
+internal static class SolutionReport
+{
+    /// <summary>Optima within this factor of the critical ratio (at the thinned last stage) are polished and tested on all points.</summary>
+    private const double PolishMargin = 1.5;
+
+    public static SpectrumFitResult Attach(SpectrumFitResult result, SpectrumFitProblem problem, ParameterLayout layout,
+        FitOptimum best, LeastSquaresResult polished, IReadOnlyList<FitOptimum> optima, SignSearch.Outcome search,
+        Func<double[], double[], double> distanceHz, double sameToleranceHz, Func<double[], LeastSquaresResult> polish)
+    {
+        // Residual runs: each trace's fitted points split where regions or exclusions leave a gap.
+        var runs = result.Traces.SelectMany(t => SpectrumBootstrap.Segments(t.Measured.ShiftPpm)
+            .Select(seg => t.Residual[seg.Start..seg.End])).ToArray();
+        var effective = MisfitComparison.EffectivePoints(runs);
+        var p = layout.FreeCount;
+        var critical = MisfitComparison.CriticalRatio(effective, p);
+
+        var fittedSystem = layout.ApplySpin(problem.System, layout.Expand(polished.Parameters));
+        var freeOfCoupling = SignSearch.FreeOfCoupling(layout, problem.System.Couplings.Count);
+        var searchable = SignSearch.SearchableCouplings(layout, freeOfCoupling, layout.FreeBounds());
+        var groups = CouplingSigns.Groups(fittedSystem, searchable);
+        var varied = Enumerable.Range(0, freeOfCoupling.Length).Where(c => freeOfCoupling[c] >= 0).ToHashSet();
+        int[] Signs(double[] free) => freeOfCoupling.Select((f, c) =>
+            Math.Sign(f >= 0 ? free[f] : problem.System.Couplings[c].J.Value)).ToArray();
+        var signOptima = optima.Select(o => new SignOptimum(Signs(o.Free), o.Cost)).Append(new SignOptimum(Signs(best.Free), best.Cost)).ToArray();
+        var verdicts = CouplingSigns.Judge(fittedSystem, varied, groups, signOptima, effective, p);
+        string CouplingName(int c) => layout.Parameters.First(q => q.Kind == ParameterKind.JHz && q.Index == c).Name;
+        var signs = verdicts.Select(v => new CouplingSignReport(CouplingName(v.Coupling), v.Determined, v.RelativeTo.Select(CouplingName).ToArray(),
+            v.MisfitRatio, v.Probability, v.Reason)).ToArray();
+
+        // Distinct optima: one representative per cluster of optima closer than the joining tolerance.
+        var distinct = new List<FitOptimum> { best };
+        foreach (var o in optima.OrderBy(o => o.Cost))
+            if (distinct.All(d => distanceHz(d.Free, o.Free) > sameToleranceHz)) distinct.Add(o);
+
+        var alternatives = new List<(double[] Full, AlternativeSolution Solution)>();
+        var bestFull = layout.Expand(polished.Parameters);
+        foreach (var o in distinct.Skip(1))
+        {
+            if (o.Cost / Math.Max(best.Cost, double.Epsilon) > PolishMargin * critical) continue;
+            if (SameUpToSignsAndLabels(layout, bestFull, layout.Expand(o.Free))) continue;
+            if (alternatives.Any(a => SameUpToSignsAndLabels(layout, a.Full, layout.Expand(o.Free)))) continue;
+            var refined = polish(o.Free);
+            var ratio = refined.ResidualSumOfSquares / Math.Max(polished.ResidualSumOfSquares, double.Epsilon);
+            if (ratio > critical) continue;
+            if (distanceHz(refined.Parameters, polished.Parameters) <= sameToleranceHz) continue;
+            var full = layout.Expand(refined.Parameters);
+            var differences = Enumerable.Range(0, layout.Parameters.Count)
+                .Where(i => layout.Parameters[i].Kind is ParameterKind.ShiftPpm or ParameterKind.JHz && layout.FreeIndexOf(i) >= 0)
+                .Where(i => Math.Abs(full[i] - bestFull[i]) > SignificantDifference(layout, i, polished))
+                .Select(i => new ParameterDifference(layout.Parameters[i].Name, layout.Parameters[i].Unit, bestFull[i], full[i])).ToArray();
+            if (differences.Length == 0) continue;
+            alternatives.Add((full, new AlternativeSolution(Math.Max(1, ratio), MisfitComparison.Probability(Math.Max(1, ratio), effective, p), o.Origin, differences)));
+        }
+
+        var warnings = result.Warnings.ToList();
+        if (alternatives.Count > 0)
+            warnings.Add($"{alternatives.Count + 1} distinct solutions fit this spectrum equally well (within Hamilton's 5 % test on " +
+                         $"{effective:0} effective points): the values below are one of them; see the alternative solutions");
+        return result with
+        {
+            Solutions = new SolutionSearch(result.Starts, search.Patterns, search.SecondSolutions, distinct.Count, effective, signs,
+                alternatives.Select(a => a.Solution).ToArray()),
+            Warnings = warnings,
+        };
+    }
+
+    /// <summary>Three standard errors, and never less than a thousandth of a Hz (or its ppm).</summary>
+    private static double SignificantDifference(ParameterLayout layout, int parameter, LeastSquaresResult polished)
+    {
+        var f = layout.FreeIndexOf(parameter);
+        var se = f >= 0 ? polished.StandardErrors[f] : 0;
+        var floor = layout.Parameters[parameter].Kind == ParameterKind.ShiftPpm ? 1e-6 : 1e-3;
+        return Math.Max(floor, double.IsFinite(se) ? 3 * se : floor);
+    }
+
+    /// <summary>
+    /// The same values under other labels (A with B in AA'BB') or with other coupling signs: the sorted shifts and the
+    /// sorted |J| agree. Other labels are the same solution; other signs are what the sign report states, coupling by coupling.
+    /// </summary>
+    private static bool SameUpToSignsAndLabels(ParameterLayout layout, double[] a, double[] b)
+    {
+        bool SameSorted(ParameterKind kind, Func<double, double> value, double tolerance)
+        {
+            var x = Enumerable.Range(0, a.Length).Where(i => layout.Parameters[i].Kind == kind).Select(i => value(a[i])).Order().ToArray();
+            var y = Enumerable.Range(0, b.Length).Where(i => layout.Parameters[i].Kind == kind).Select(i => value(b[i])).Order().ToArray();
+            return x.Zip(y).All(t => Math.Abs(t.First - t.Second) <= tolerance);
+        }
+        return SameSorted(ParameterKind.ShiftPpm, v => v, 1e-4) && SameSorted(ParameterKind.JHz, Math.Abs, 0.05);
+    }
+}
