@@ -13,7 +13,7 @@ namespace SpinSim.Core.Processing;
 public static class FidProcessor
 {
     /// <summary>The automatic phase is found on the first this many points of the FID, zero filled to twice as many (the phase does not depend on the size).</summary>
-    public const int PhasingPoints = 16384;
+    public const int PhasingPoints = 8192;
 
 
     /// <exception cref="ArgumentException">The options are not usable (see <see cref="ProcessingOptions.Problems"/>).</exception>
@@ -49,7 +49,7 @@ public static class FidProcessor
             {
                 delay = Math.Max(0, delay + p1 / 360);
                 spectrum = Transform(Aligned(fid.Points, delay), delay, window, size);
-                (p0, p1) = FindPhase(fid.Points, delay, window, size, spectrum);
+                (p0, p1) = FindPhase(fid.Points, delay, window, size, spectrum, (p0, 0));
             }
             phaseHow = "automatic, minimum entropy (Chen et al., J. Magn. Reson. 158, 164, 2002)";
         }
@@ -170,11 +170,12 @@ public static class FidProcessor
     }
 
     /// <summary>The automatic phase, found on a spectrum of at most twice <see cref="PhasingPoints"/> points.</summary>
-    private static (double ZeroOrderDeg, double FirstOrderDeg) FindPhase(Complex[] fid, double delay, double[] window, int size, Complex[] spectrum)
+    private static (double ZeroOrderDeg, double FirstOrderDeg) FindPhase(Complex[] fid, double delay, double[] window, int size, Complex[] spectrum,
+        (double ZeroOrderDeg, double FirstOrderDeg)? start = null)
     {
         // Zero filled once at least: on the bare acquired points a line spans too few points for a symmetric derivative.
         var phasingSize = Math.Min(size, 2 * NextPowerOfTwo(Math.Min(fid.Length, PhasingPoints)));
         var phasing = size <= phasingSize ? spectrum : Transform(Aligned(fid, delay), delay, window, phasingSize);
-        return MinimumEntropyPhasing.Find(phasing);
+        return MinimumEntropyPhasing.Find(phasing, start);
     }
 }

@@ -24,8 +24,11 @@ public static class MinimumEntropyPhasing
     /// <summary>The first-order phase is scanned over this range (degrees) before the simplex: two points of filter delay either way.</summary>
     public const double FirstOrderScanDeg = 720;
 
-    /// <summary>Phases in degrees that make <paramref name="spectrum"/> (ascending frequency, the centre bin at index n/2) absorptive.</summary>
-    public static (double ZeroOrderDeg, double FirstOrderDeg) Find(ReadOnlySpan<Complex> spectrum)
+    /// <summary>
+    /// Phases in degrees that make <paramref name="spectrum"/> (ascending frequency, the centre bin at index n/2)
+    /// absorptive. With <paramref name="start"/> (a phase known to be close) the coarse scan is skipped.
+    /// </summary>
+    public static (double ZeroOrderDeg, double FirstOrderDeg) Find(ReadOnlySpan<Complex> spectrum, (double ZeroOrderDeg, double FirstOrderDeg)? start = null)
     {
         if (spectrum.Length < 8) throw new ArgumentException("a spectrum of at least 8 points is needed to find its phase", nameof(spectrum));
         var z = spectrum.ToArray();
@@ -41,8 +44,8 @@ public static class MinimumEntropyPhasing
         var mask = SignalMask(z, scale);
 
         // Coarse scan: for each first-order phase, the zero-order phase that makes the tallest point real and positive.
-        var best = (P0: 0.0, P1: 0.0, Cost: double.PositiveInfinity);
-        for (var p1 = -FirstOrderScanDeg; p1 <= FirstOrderScanDeg; p1 += 15)
+        var best = (P0: start?.ZeroOrderDeg ?? 0.0, P1: start?.FirstOrderDeg ?? 0.0, Cost: double.PositiveInfinity);
+        for (var p1 = -FirstOrderScanDeg; start is null && p1 <= FirstOrderScanDeg; p1 += 30)
         {
             var p0 = -peakArg - p1 * peakU;
             var cost = Cost(z, mask, p0, p1, scale, work);
@@ -51,7 +54,7 @@ public static class MinimumEntropyPhasing
         var objective = ObjectiveFunction.Value(v => Cost(z, mask, v[0], v[1], scale, work));
         // Restarted with ever smaller simplexes: one run can collapse early along one direction of a flat valley.
         var (zero, first) = (best.P0, best.P1);
-        foreach (var size in new[] { 10.0, 2.0, 0.5 })
+        foreach (var size in start is null ? new[] { 10.0, 1.0 } : [1.0])
         {
             var result = NelderMeadSimplex.Minimum(objective, Vector<double>.Build.Dense([zero, first]),
                 Vector<double>.Build.Dense([size, 2 * size]), 1e-12, 5000);
@@ -92,7 +95,7 @@ public static class MinimumEntropyPhasing
 
     private static double Cost(Complex[] z, int[] mask, double p0, double p1, double scale, double[] real)
     {
-        Apply(z, p0, p1, real);
+        ApplyAt(z, mask, p0, p1, real);
         double total = 0, penalty = 0;
         foreach (var k in mask) total += Math.Abs(real[k + 1] - real[k]);
         if (!(total > 0)) return double.PositiveInfinity;
@@ -108,6 +111,26 @@ public static class MinimumEntropyPhasing
             }
         }
         return entropy + PenaltyWeight * penalty;
+    }
+
+    /// <summary>The phased real part at the masked points and the point after each (all the objective reads).</summary>
+    private static void ApplyAt(Complex[] z, int[] mask, double p0, double p1, double[] real)
+    {
+        var n = z.Length;
+        var step = Complex.FromPolarCoordinates(1, p1 / n * Math.PI / 180);
+        var rotation = Complex.Zero;
+        var next = -1;
+        foreach (var m in mask)
+        {
+            for (var k = m; k <= m + 1; k++)
+            {
+                if (k < next) continue;
+                // A new run starts where the mask skips points; within a run the rotation advances by multiplication.
+                rotation = k == next ? rotation * step : Complex.FromPolarCoordinates(1, (p0 + p1 * (k - n / 2) / (double)n) * Math.PI / 180);
+                real[k] = z[k].Real * rotation.Real - z[k].Imaginary * rotation.Imaginary;
+                next = k + 1;
+            }
+        }
     }
 
     /// <summary>
