@@ -32,7 +32,9 @@ public static class FitTable
                 var value = t.p.Varied && !double.IsFinite(t.p.StdError)
                     ? new UncertainValue(t.p.Value, double.NaN).Concise(ParameterDisplay.FallbackDecimals(t.p.Kind), trueMinus) + " (undetermined)"
                     : t.p.Varied ? ParameterDisplay.ValueText(t.p, trueMinus)
-                    : new UncertainValue(t.p.Value, double.NaN).Concise(ParameterDisplay.FallbackDecimals(t.p.Kind), trueMinus) + " (fixed)";
+                    : new UncertainValue(t.p.Value, double.NaN).Concise(ParameterDisplay.FallbackDecimals(t.p.Kind), trueMinus)
+                      // "held": the fit chose not to vary it (the warnings say why); "fixed": the setup did.
+                      + (result.Setup?.Parameters[t.i].HeldBecause is not null ? " (held)" : " (fixed)");
                 var boot = result.Bootstrap?.StdErrors[t.i] is { } b && double.IsFinite(b) && t.p.Varied
                     ? "±" + new UncertainValue(0, b).RoundedUncertainty() : "";
                 return (Row: new ParameterRow(label, value, boot, ParameterDisplay.GroupOf(t.p.Kind)), Order: (int)ParameterDisplay.GroupOf(t.p.Kind));
