@@ -46,12 +46,16 @@ public static class FitCommand
         };
         var solvent = new Option<string?>("--solvent") { Description = "Solvent named in the data line (default: the JCAMP-DX file's .SOLVENT NAME, if any)", HelpName = "NAME" };
         var noTable = new Option<bool>("--no-table") { Description = "Leave the parameter table out of the figure" };
+        var signsAsGiven = new Option<bool>("--signs-as-given")
+        {
+            Description = "Skip the search over relative signs of the couplings: keep the signs of the start (hold_sign in the [fit] table holds single couplings)",
+        };
         var data = new DataFileOptions();
         var figure = new FigureChoice();
         var engine = new EngineChoice();
         var command = new Command("fit", "Fit shifts, couplings, linewidth, scale and baseline to a measured spectrum by nonlinear least squares")
         {
-            file, dataFiles, setupFile, linewidth, shape, starts, seed, bootstrap, report, writeSystem, html, solvent, noTable,
+            file, dataFiles, setupFile, linewidth, shape, starts, seed, bootstrap, report, writeSystem, html, solvent, noTable, signsAsGiven,
         };
         data.AddTo(command);
         figure.AddTo(command);
@@ -121,7 +125,7 @@ public static class FitCommand
             }
 
             var progress = io.Verbosity == Verbosity.Quiet ? null : new ThrottledProgress(io.Error);
-            var result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed),
+            var result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed), SignSearch: !parse.GetValue(signsAsGiven),
                 Progress: progress, Cancel: io.Cancel, Engine: engineOptions));
             progress?.Finish();
             if (replicates > 0 && !result.Stopped)
@@ -183,6 +187,8 @@ public static class FitCommand
                     ReportLine = reportLine,
                     // The setup record in readable rows (the JSON's "setup" is written from the same record).
                     Setup = result.Setup?.Rows().Select(r => (r.Label, r.Value)).ToArray() ?? SetupTable.Flatten(record?["setup"]),
+                    SolutionLines = [.. SolutionSummary.Tried(result.Solutions) is { } tried ? [tried] : Array.Empty<string>(),
+                        .. SolutionSummary.SignLines(result.Solutions), .. SolutionSummary.AlternativeLines(result.Solutions)],
                     Banner = result.Stopped ? "The fit was stopped before it finished: the values are the best point found so far, not a converged optimum."
                         : !result.Converged ? $"The fit did not converge ({result.StopReason}): the values are the last point reached, not a minimum; do not quote them."
                         : null,

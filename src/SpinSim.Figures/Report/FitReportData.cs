@@ -41,4 +41,7 @@ public sealed record FitReportData(
 
     /// <summary>Shown at the top in a banner when set: the fit did not converge, or was stopped.</summary>
     public string? Banner { get; init; }
+
+    /// <summary>What the sign search tried, each coupling's relative sign and the alternative solutions, in words (one line each).</summary>
+    public IReadOnlyList<string> SolutionLines { get; init; } = [];
 }

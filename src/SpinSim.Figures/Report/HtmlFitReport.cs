@@ -129,6 +129,12 @@ public static class HtmlFitReport
                     $"Lower triangle: each pair once. Bold, shaded cells mark |r| ≥ {StrongCorrelation:0.0#}: the data barely separate that pair, so their values and errors are less certain than the table alone suggests.")));
         }
 
+        if (data.SolutionLines.Count > 0)
+        {
+            body.Add(E("h2", "Relative signs and alternative solutions"));
+            body.Add(E("ul", new XAttribute("class", "solutions"), data.SolutionLines.Select(l => E("li", l.Trim()))));
+        }
+
         body.Add(E("h2", "Warnings"));
         body.Add(data.Warnings is { Count: > 0 } warnings
             ? E("ul", new XAttribute("class", "warnings"), warnings.Select(w => E("li", w ?? "")))

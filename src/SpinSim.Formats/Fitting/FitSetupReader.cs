@@ -39,7 +39,7 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 public static class FitSetupReader
 {
     private static readonly string[] Keys =
-        ["regions_ppm", "exclude_ppm", "vary", "fix", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape",
+        ["regions_ppm", "exclude_ppm", "vary", "fix", "hold_sign", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape",
          "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric", "linewidth_per_trace", "set_shift_ppm"];
 
     private static readonly string[] FidKeys = ["window", "window_hz", "points", "filter_delay_points", "phase_deg", "baseline_order"];
@@ -133,6 +133,10 @@ public static class FitSetupReader
                 case "fix":
                     setup = setup with { Fix = Strings(path, e) };
                     nameLines.AddRange(setup.Fix.Select(n => (n, e.Line, true)));
+                    break;
+                case "hold_sign":
+                    setup = setup with { HoldSign = Strings(path, e) };
+                    nameLines.AddRange(setup.HoldSign.Select(n => (n, e.Line, true)));
                     break;
                 case "tie":
                     if (e.Value is not object[] groups || groups.Any(g => g is not object[] inner || inner.Length < 2 || inner.Any(x => x is not string)))

@@ -105,4 +105,19 @@ public class SignSearchTests
         Assert.Equal(Math.Abs(second.Couplings[1].J.Value), Math.Abs(jax.Alternative), 0.05);
         Assert.Contains(result.Warnings, w => w.Contains("distinct solutions"));
     }
+
+    [Fact]
+    public void AHeldSignIsKeptAndNotSearched()
+    {
+        // hold_sign: J(A,X) and J(B,X) keep the signs they start with (one-sided bounds at zero) and the search leaves
+        // them alone, so their relative sign stays the wrong one (holding one alone would not do: reversing every other
+        // coupling gives the truth's mirror).
+        var truth = AbxTruth();
+        var trace = Synthetic(truth, 0.8, 8192, 0.005, 4);
+        var setup = AbxRegions with { HoldSign = ["j:A-X", "j:B-X"] };
+        var result = SpectrumFitter.Fit(Problem(AllPositive(truth, 3.08), trace, setup, 0.8), new SpectrumFitOptions(Starts: 2));
+        Assert.True(result.FittedSystem.Couplings[1].J.Value >= 0 && result.FittedSystem.Couplings[2].J.Value >= 0);
+        var free = SpectrumFitter.Fit(Problem(AllPositive(truth, 3.08), trace, AbxRegions, 0.8), new SpectrumFitOptions(Starts: 2));
+        Assert.True(free.Rms < result.Rms, $"the free search ({free.Rms}) should fit better than the held wrong sign ({result.Rms})");
+    }
 }

@@ -17,6 +17,12 @@ public sealed record FitSetup
     public IReadOnlyList<PpmRange> Exclude { get; init; } = [];
     public IReadOnlyList<string> Vary { get; init; } = ["shift:*", "j:*", "linewidth*", "scale*", "baseline*"];
     public IReadOnlyList<string> Fix { get; init; } = [];
+
+    /// <summary>
+    /// Couplings (names or patterns) whose sign is held as given: they stay free in size but keep their starting sign
+    /// (a one-sided bound at zero), and the relative-sign search does not reverse them.
+    /// </summary>
+    public IReadOnlyList<string> HoldSign { get; init; } = [];
     public IReadOnlyList<IReadOnlyList<string>> Ties { get; init; } = [];
     public IReadOnlyDictionary<string, (double Low, double High)> Bounds { get; init; } = new Dictionary<string, (double, double)>();
     public int BaselineOrder { get; init; }
@@ -191,6 +197,8 @@ public sealed record FitSetup
         var given = Bounds.TryGetValue(name, out var b);
         if (given) (lower, upper) = (Math.Min(b.Low, b.High), Math.Max(b.Low, b.High));
         else if (kind == ParameterKind.ShiftPpm) (lower, upper) = (start - ShiftWindowPpm, start + ShiftWindowPpm);
+        if (kind == ParameterKind.JHz && HoldSign.Any(p => Matches(p, name)))
+            (lower, upper) = start >= 0 ? (Math.Max(lower, 0), upper) : (lower, Math.Min(upper, 0));
         if (kind != ParameterKind.Scale && !(start >= lower && start <= upper))
             throw new InputException(null, null, $"the start of {name}, {start:G6}, lies outside its bounds [{lower:G6}, {upper:G6}]",
                 "Change the start value in the system file, or widen the bounds in [fit.bounds] (shift_window_ppm for the default shift window)");
