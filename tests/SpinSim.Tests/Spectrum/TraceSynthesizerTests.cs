@@ -194,7 +194,7 @@ public class TraceSynthesizerTests
         if (profile.SigmaHz == 0) return LorentzianTail(distanceHz);
         var sigma = profile.SigmaHz;
         return Integrate.GaussKronrod(s => Math.Exp(-0.5 * s * s / (sigma * sigma)) / (sigma * Math.Sqrt(2 * Math.PI)) * LorentzianTail(distanceHz - s),
-            -12 * sigma, 12 * sigma, 1e-15, 30, 61);
+            -12 * sigma, 12 * sigma, 1e-13, 12, 61);
     }
 
     /// <summary>The first moment about the centre of a unit profile over [a, b] (offsets in Hz): zero for a symmetric Gaussian window, closed form for a Lorentzian.</summary>
@@ -206,7 +206,7 @@ public class TraceSynthesizerTests
         if (profile.SigmaHz == 0) return Lorentzian(a, b);
         var sigma = profile.SigmaHz;
         return Integrate.GaussKronrod(s => Math.Exp(-0.5 * s * s / (sigma * sigma)) / (sigma * Math.Sqrt(2 * Math.PI)) * (Lorentzian(a - s, b - s) + s * (Math.Atan2(b - s, half) - Math.Atan2(a - s, half)) / Math.PI),
-            -12 * sigma, 12 * sigma, 1e-15, 30, 61);
+            -12 * sigma, 12 * sigma, 1e-13, 12, 61);
     }
 
     private static void AssertRelative(double expected, double actual, double tolerance) =>
