@@ -11,7 +11,7 @@ public class DemoTests
     {
         var root = ReferenceData.RepositoryRoot;
         var committed = Path.Combine(root, "demo-output", "summary.json");
-        Assert.True(File.Exists(committed), "demo-output/summary.json is missing: run `dotnet run --project src/SpinSim.Cli -- demo` and commit it");
+        Assert.True(File.Exists(committed), "demo-output/summary.json is missing: run `dotnet run -c Release --project src/SpinSim.Cli -- demo` and commit it");
         var outDir = Path.Combine(Path.GetTempPath(), $"spinsim-demo-{Guid.NewGuid():N}");
         var (code, _, err) = CliTests.Run("demo", "--out", outDir, "--systems", Path.Combine(root, "spin-systems"));
         Assert.True(code == 0, err);
