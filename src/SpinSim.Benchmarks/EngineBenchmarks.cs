@@ -81,3 +81,35 @@ public static class Systems
         [new("MeA", "CH", 6.8), new("MeB", "CH", 6.7), new("CH", "Ha", 7.5), new("CH", "Hb", 5.2), new("Ha", "Hb", -13.6),
          new("tBu", "Ha", 0.3)]);
 }
+
+/// <summary>
+/// Issue 14's yardstick: the whole engine against its dense floor for fully coupled systems of 10, 12 and 14 spins.
+/// The floor (<see cref="SubspectrumSolver.DenseFloor"/>) is dsyevd of every block in an observed transition plus one
+/// V_lower^T X product per block pair, scheduled as the engine schedules them; everything else the engine does
+/// (building H, applying F-, turning amplitudes into lines, merging) is its overhead over the floor.
+/// </summary>
+[MemoryDiagnoser]
+public class EngineFloorBenchmarks
+{
+    [Params(10, 12, 14)]
+    public int Spins { get; set; }
+
+    private SpinSystem _system = null!;
+    private Action _floor = null!;
+
+    [GlobalSetup]
+    public void Setup()
+    {
+        if (!DenseBackends.NativeAvailable) throw new InvalidOperationException("libopenblas.so.0 did not load: the floor would be the managed solver's");
+        _system = Systems.FullyCoupled(Spins);
+        var all = Enumerable.Range(0, _system.Nuclei.Count).ToArray();
+        var combination = SpectrumEngine.Combinations(_system, all, new double[all.Length]).Single();
+        _floor = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, _system.Nuclei.Count, DenseBackends.Default).DenseFloor();
+    }
+
+    [Benchmark(Baseline = true)]
+    public void Floor() => _floor();
+
+    [Benchmark]
+    public int Engine() => SpectrumEngine.Compute(_system).Lines.Count;
+}

@@ -253,6 +253,51 @@ internal sealed class SubspectrumSolver
     }
 
     /// <summary>
+    /// The dense floor of <see cref="Solve"/> (issue 14's yardstick, for the benchmarks): dsyevd of every block that takes
+    /// part in an observed transition and, per observed block pair, the one product V_lower^T X that gives the transition
+    /// elements, scheduled as <see cref="Solve"/> schedules them (largest first, one solve per core), with nothing else:
+    /// no Hamiltonian build, no F- application, no line list. The blocks are built once, outside the timed part.
+    /// </summary>
+    internal Action DenseFloor()
+    {
+        var (blocks, keyOf, lowerKeyStep) = Partition();
+        var local = new int[_totalStates];
+        foreach (var codes in blocks)
+            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
+        var index = new Dictionary<long, int>();
+        for (var b = 0; b < blocks.Count; b++) index[keyOf[b]] = b;
+        var pairs = new List<(int Upper, int Lower)>();
+        var needed = new bool[blocks.Count];
+        for (var b = 0; b < blocks.Count; b++)
+            if (lowerKeyStep != 0 && index.TryGetValue(keyOf[b] - lowerKeyStep, out var lower)) { pairs.Add((b, lower)); needed[b] = needed[lower] = true; }
+        var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
+        var built = blocks.Select((codes, b) => needed[b] ? BuildBlock(codes, local) : []).ToArray();
+        var work = built.Select(h => new double[h.Length]).ToArray();
+        var eigenvalues = blocks.Select(codes => new double[codes.Length]).ToArray();
+        var products = pairs.Select(p => (X: new double[(long)blocks[p.Lower].Length * blocks[p.Upper].Length], T: new double[(long)blocks[p.Lower].Length * blocks[p.Upper].Length])).ToArray();
+        var pairOrder = Enumerable.Range(0, pairs.Count)
+            .OrderByDescending(k => (double)blocks[pairs[k].Lower].Length * blocks[pairs[k].Lower].Length * blocks[pairs[k].Upper].Length).ToArray();
+        var parallel = new ParallelOptions
+        {
+            MaxDegreeOfParallelism = order.Length > 0 && blocks[order[0]].Length >= ParallelBlockSize ? Environment.ProcessorCount : 1,
+        };
+        return () =>
+        {
+            Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b =>
+            {
+                Array.Copy(built[b], work[b], built[b].Length);
+                _backend.SymmetricEigen(blocks[b].Length, work[b], eigenvalues[b]);
+            });
+            Parallel.ForEach(Partitioner.Create(pairOrder, EnumerablePartitionerOptions.NoBuffering), parallel, k =>
+            {
+                var (u, l) = pairs[k];
+                int nu = blocks[u].Length, nl = blocks[l].Length;
+                _backend.MultiplyTransposedA(nl, nu, nl, work[l], products[k].X, products[k].T);
+            });
+        };
+    }
+
+    /// <summary>
     /// Transitions whose amplitude is below 1e-10 (intensity 1e-20 per unit weight) are taken as zero and dropped:
     /// eigenvector roundoff gives forbidden transitions amplitudes of order 1e-15 to 1e-13, and a real line that weak
     /// is 1e-20 of a single-spin line, so the intensity left out is far below any tolerance of the sum rule.
