@@ -211,58 +211,58 @@ public static class SpectrumEngine
     {
         var count = chunks.Sum(c => c.Count);
         var frequency = new double[count];
-        var chunkOf = new int[count];
-        var indexIn = new int[count];
+        var source = new long[count]; // chunk << 32 | index in the chunk
         var at = 0;
         for (var c = 0; c < chunks.Count; c++)
         {
-            chunks[c].FrequencyHz.CopyTo(frequency, at);
-            for (var k = 0; k < chunks[c].Count; k++) { chunkOf[at + k] = c; indexIn[at + k] = k; }
+            Array.Copy(chunks[c].FrequencyHz, 0, frequency, at, chunks[c].Count);
+            for (var k = 0; k < chunks[c].Count; k++) source[at + k] = ((long)c << 32) | (uint)k;
             at += chunks[c].Count;
         }
-        var order = Enumerable.Range(0, count).ToArray();
-        Array.Sort(frequency, order);
+        Array.Sort(frequency, source);
 
-        var lines = new List<Line>();
-        var origin = new List<double>();
-        var dIntensity = new List<double>();
-        var dMoment = new List<double>();
-        var row = new double[entryCount];
+        // Groups of coincident lines, counted first so that every output is allocated once at its size.
+        var groups = count == 0 ? 0 : 1;
+        for (var i = 1; i < count; i++)
+            if (frequency[i] - frequency[i - 1] > toleranceHz) groups++;
+        var lines = new Line[groups];
+        var origin = new double[(long)groups * entryCount];
+        var dIntensity = new double[(long)groups * derivatives];
+        var dMoment = new double[(long)groups * derivatives];
         var sumDI = new double[derivatives];
         var sumDM = new double[derivatives];
-        var i = 0;
-        while (i < count)
+        for (int i = 0, g = 0; i < count; g++)
         {
             double sumI = 0, sumF = 0;
-            Array.Clear(row);
+            var row = origin.AsSpan((int)((long)g * entryCount), entryCount);
             Array.Clear(sumDI);
             Array.Clear(sumDM);
             var first = i;
             do
             {
-                var chunk = chunks[chunkOf[order[i]]];
-                var k = indexIn[order[i]];
+                var chunk = chunks[(int)(source[i] >> 32)];
+                var k = (int)(source[i] & 0xffffffff);
                 var intensity = chunk.Intensity[k];
                 sumI += intensity;
                 sumF += intensity * frequency[i];
                 chunk.AddOrigin(k, intensity, row);
                 for (var p = 0; p < derivatives; p++)
                 {
-                    var di = chunk.DIntensity[k * derivatives + p];
+                    var di = chunk.DIntensity[(long)k * derivatives + p];
                     sumDI[p] += di;
-                    sumDM[p] += di * frequency[i] + chunk.DMoment[k * derivatives + p];
+                    sumDM[p] += di * frequency[i] + chunk.DMoment[(long)k * derivatives + p];
                 }
                 i++;
             } while (i < count && frequency[i] - frequency[i - 1] <= toleranceHz);
             var f = i - first == 1 ? frequency[first] : sumF / sumI;
-            lines.Add(new Line(f, f / observeMHz, sumI));
-            foreach (var w in row) origin.Add(w / sumI);
+            lines[g] = new Line(f, f / observeMHz, sumI);
+            for (var e = 0; e < entryCount; e++) row[e] /= sumI;
             for (var p = 0; p < derivatives; p++)
             {
-                dIntensity.Add(sumDI[p]);
-                dMoment.Add(sumDM[p] - f * sumDI[p]);
+                dIntensity[(long)g * derivatives + p] = sumDI[p];
+                dMoment[(long)g * derivatives + p] = sumDM[p] - f * sumDI[p];
             }
         }
-        return (lines.ToArray(), origin.ToArray(), dIntensity.ToArray(), dMoment.ToArray());
+        return (lines, origin, dIntensity, dMoment);
     }
 }

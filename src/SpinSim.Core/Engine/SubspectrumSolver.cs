@@ -21,24 +21,27 @@ internal readonly record struct Generator(int P, int Q);
 /// Lines of one block pair before merging, in flat arrays. The origin of line k is not stored but derived on demand
 /// from the expected Fz of its two eigenstates (<see cref="AddOrigin"/>), which keeps many lines cheap.
 /// </summary>
-internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[] izLower, int derivativeCount = 0)
+internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[] izLower, int capacity, int derivativeCount = 0)
 {
-    public readonly List<double> FrequencyHz = [];
-    public readonly List<double> Intensity = [];
-    public readonly List<long> States = []; // upper << 32 | lower
+    // Exact-size arrays, filled in order: the solver counts a pair's kept lines before it allocates them, because
+    // growing lists re-copied (and, on the large-object heap, re-zeroed) every line several times.
+    public readonly double[] FrequencyHz = new double[capacity];
+    public readonly double[] Intensity = new double[capacity];
+    private readonly long[] _states = new long[capacity]; // upper << 32 | lower
 
     /// <summary>Parameters differentiated by; per line dI/dθ and I·dν/dθ, as [line * DerivativeCount + parameter].</summary>
     public readonly int DerivativeCount = derivativeCount;
-    public readonly List<double> DIntensity = [];
-    public readonly List<double> DMoment = [];
+    public readonly double[] DIntensity = new double[(long)capacity * derivativeCount];
+    public readonly double[] DMoment = new double[(long)capacity * derivativeCount];
 
-    public int Count => FrequencyHz.Count;
+    public int Count { get; private set; }
 
     public void Add(double frequencyHz, double intensity, int upper, int lower)
     {
-        FrequencyHz.Add(frequencyHz);
-        Intensity.Add(intensity);
-        States.Add(((long)upper << 32) | (uint)lower);
+        FrequencyHz[Count] = frequencyHz;
+        Intensity[Count] = intensity;
+        _states[Count] = ((long)upper << 32) | (uint)lower;
+        Count++;
     }
 
     /// <summary>
@@ -49,8 +52,8 @@ internal sealed class RawLines(int[] observedEntries, double[] izUpper, double[]
     /// </summary>
     public void AddOrigin(int k, double scale, Span<double> row)
     {
-        var a = (int)(States[k] >> 32);
-        var b = (int)(States[k] & 0xffffffff);
+        var a = (int)(_states[k] >> 32);
+        var b = (int)(_states[k] & 0xffffffff);
         var count = observedEntries.Length;
         for (var i = 0; i < count; i++)
             row[observedEntries[i]] += scale * (izUpper[a * count + i] - izLower[b * count + i]);
@@ -497,7 +500,10 @@ internal sealed class SubspectrumSolver
 
         var observedEntries = observed.Select(p => _particles[p].Entry).ToArray();
         var derivatives = pu is null || pl is null ? 0 : pu.Vt.Length;
-        var lines = new RawLines(observedEntries, izUpper, izLower, derivatives);
+        var kept = 0;
+        foreach (var amplitude in t)
+            if (weight * amplitude * amplitude > intensityFloor) kept++;
+        var lines = new RawLines(observedEntries, izUpper, izLower, kept, derivatives);
         var zero = PoolWeakLines ? ZeroIntensityPerWeight * weight : double.PositiveInfinity;
         var count = observed.Length;
         // T by rows as well, for the derivative's sum over upper states (a contiguous row of T).
@@ -608,14 +614,15 @@ internal sealed class SubspectrumSolver
     {
         var row = rows.AsSpan(b * nu, nu);
         var column = t.AsSpan(a * nl, nl);
+        var at = (long)(lines.Count - 1) * lines.DerivativeCount; // the line just added
         for (var g = 0; g < pu.Vt.Length; g++)
         {
             var dt = SmallDense.Dot(row, pu.C[g].AsSpan(a * nu, nu)) + SmallDense.Dot(pl.C[g].AsSpan(b * nl, nl), column);
             double upper = 0, lower = 0;
             for (var a2 = pu.ClusterFirst[a]; a2 < pu.ClusterEnd[a]; a2++) upper += pu.Vt[g][a2 + (long)a * nu] * row[a2];
             for (var b2 = pl.ClusterFirst[b]; b2 < pl.ClusterEnd[b]; b2++) lower += pl.Vt[g][b2 + (long)b * nl] * column[b2];
-            lines.DIntensity.Add(2 * weight * amplitude * dt);
-            lines.DMoment.Add(weight * amplitude * (upper - lower));
+            lines.DIntensity[at + g] = 2 * weight * amplitude * dt;
+            lines.DMoment[at + g] = weight * amplitude * (upper - lower);
         }
     }
 
