@@ -58,6 +58,7 @@ public static class CheckCommand
         var estimate = ResourceEstimate.For(s, plan);
         o.WriteLine($"cost             {estimate.Describe()}");
         o.WriteLine($"backend          {DenseBackends.Default.Name}");
+        o.WriteLine($"fourier          {Fft.Name}");
         var warnings = new List<string>();
         var seconds = estimate.SecondsWith(DenseBackends.Default);
         if (estimate.WorkingBytes > options.MemoryBudgetBytes)

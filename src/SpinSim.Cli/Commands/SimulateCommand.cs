@@ -1,5 +1,6 @@
 using System.CommandLine;
 using SpinSim.Core.Engine;
+using SpinSim.Core.LinearAlgebra;
 using SpinSim.Core.Model;
 using SpinSim.Core.Spectrum;
 using SpinSim.Core.Traces;
@@ -101,7 +102,7 @@ public static class SimulateCommand
             io.Out.WriteLine("integrals (normalised to the number of observed nuclei):");
             foreach (var integral in simulated.Integrals)
                 io.Out.WriteLine($"  {integral.Id,-10} {integral.ShiftPpm,8:0.000} ppm  {integral.Value,7:0.000}  (nuclei: {integral.Count})");
-            io.Detail($"backend: {result.Backend}");
+            io.Detail($"backend: {result.Backend}; Fourier transforms: {Fft.Name}");
             foreach (var note in result.Notes) io.Detail($"engine: {note}");
             io.Detail($"blocks: {result.Blocks}, largest {result.LargestBlock} states; {elapsed.TotalMilliseconds:0} ms");
             io.Detail($"total intensity {result.TotalIntensity:G10} of Tr(F+F-) = {result.ExpectedTotalIntensity:G10}; missing (numerical zeros): {result.DroppedIntensity:G3}");

@@ -1,5 +1,5 @@
 using System.Numerics;
-using MathNet.Numerics.IntegralTransforms;
+using SpinSim.Core.LinearAlgebra;
 using SpinSim.Core.Traces;
 
 namespace SpinSim.Core.Processing;
@@ -134,13 +134,14 @@ public static class FidProcessor
         var n = fid.Length;
         var data = (Complex[])fid.Clone();
         if (delay == 0) return data;
-        Fourier.Forward(data, FourierOptions.Matlab);
+        Fft.Forward(data);
         for (var m = 0; m < n; m++)
         {
             var signed = m < (n + 1) / 2 ? m : m - n;
-            data[m] *= Complex.FromPolarCoordinates(1, 2 * Math.PI * signed * delay / n);
+            // 1/n here: the inverse transform is unscaled.
+            data[m] *= Complex.FromPolarCoordinates(1.0 / n, 2 * Math.PI * signed * delay / n);
         }
-        Fourier.Inverse(data, FourierOptions.Matlab);
+        Fft.Inverse(data);
         return data;
     }
 
@@ -162,7 +163,7 @@ public static class FidProcessor
         for (var k = 0; k < signal; k++) data[k] = aligned[k] * window[k];
         if (aligned[n - 1].Magnitude < 0.1 * aligned[0].Magnitude) data[0] /= 2;
         for (var k = 0; k < wrap; k++) data[size - wrap + k] = aligned[n - wrap + k];
-        Fourier.Forward(data, FourierOptions.Matlab);
+        Fft.Forward(data);
         var spectrum = new Complex[size];
         var half = size / 2;
         for (var k = 0; k < size; k++) spectrum[k] = data[(k + half) % size];

@@ -1,6 +1,6 @@
 // Method: far fields as multipole expansions of the Cauchy kernel about grid nodes (L. Greengard and V. Rokhlin, J. Comput. Phys. 73, 325, 1987, here in one dimension), summed by FFT convolution.
 using System.Numerics;
-using MathNet.Numerics.IntegralTransforms;
+using SpinSim.Core.LinearAlgebra;
 
 namespace SpinSim.Core.Spectrum;
 
@@ -137,7 +137,7 @@ public static class TraceSynthesizer
             });
             foreach (var part in parts)
                 for (var k = 0; k < n; k++) spectrum[k] += part[k];
-            Fourier.Inverse(spectrum, FourierOptions.NoScaling);
+            Fft.Inverse(spectrum);
             for (var j = 0; j < points; j++) trace[j] = spectrum[j].Real / n;
         }
 
@@ -226,7 +226,7 @@ public static class TraceSynthesizer
                 z[d] = new Complex(odd, even);
                 z[n - d] = new Complex(-odd, even);
             }
-            Fourier.Forward(z, FourierOptions.NoScaling);
+            Fft.Forward(z);
             var a = new double[n];
             var b = new double[n];
             for (var i = 0; i < n; i++)
@@ -281,7 +281,7 @@ public static class TraceSynthesizer
     private static void AddFarPair(Complex[] z, int pair, double[][] kernels, Complex[] sum)
     {
         var n = z.Length;
-        Fourier.Forward(z, FourierOptions.NoScaling);
+        Fft.Forward(z);
         var odd = kernels[2 * pair];
         var even = kernels[2 * pair + 1];
         // K even: its kernel is odd, with transform i odd[k]; K + 1: its kernel is even, with transform even[k].
@@ -326,7 +326,7 @@ public static class TraceSynthesizer
             var slot = d & (n - 1);
             z[slot] = new Complex(z[slot].Real, profile.Phased(d * axis.Step, phase));
         }
-        Fourier.Forward(z, FourierOptions.NoScaling);
+        Fft.Forward(z);
         for (var k = 0; k < n; k++)
         {
             var mirror = Complex.Conjugate(z[(n - k) & (n - 1)]);
@@ -381,9 +381,8 @@ public static class TraceSynthesizer
                 var line = lines[near[i].Line];
                 var (first, last) = Window(line, near[i].Radius, shape, axis);
                 var profile = shape.Profile(line.FwhmHz, tabulated: true);
-                var offset0 = axis.FirstHz - line.CentreHz;
-                for (var j = first; j <= last; j++)
-                    buffer[j] += line.Area * profile.Phased(offset0 + j * axis.Step, phase);
+                if (last >= first)
+                    profile.AddPhased(buffer.AsSpan(first, last - first + 1), axis.FirstHz - line.CentreHz + first * axis.Step, axis.Step, line.Area, phase);
             }
         });
         for (var t = 1; t < threads; t++)

@@ -1,5 +1,5 @@
 using System.Numerics;
-using MathNet.Numerics.IntegralTransforms;
+using SpinSim.Core.LinearAlgebra;
 using SpinSim.Core.Traces;
 
 namespace SpinSim.Core.Fitting.Spectral;
@@ -117,10 +117,10 @@ internal sealed class PreparedData
             sum += v;
         }
         for (var k = 0; k < size; k++) kernel[k] /= sum;
-        Fourier.Forward(signal, FourierOptions.NoScaling);
-        Fourier.Forward(kernel, FourierOptions.NoScaling);
+        Fft.Forward(signal);
+        Fft.Forward(kernel);
         for (var k = 0; k < size; k++) signal[k] *= kernel[k];
-        Fourier.Inverse(signal, FourierOptions.NoScaling);
+        Fft.Inverse(signal);
         var smoothed = new double[n];
         for (var k = 0; k < n; k++) smoothed[order[k]] = signal[k].Real / size;
         return TraceIndex.Select(i => smoothed[i]).ToArray();
