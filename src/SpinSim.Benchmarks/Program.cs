@@ -31,6 +31,21 @@ if (args is ["fft", var size])
     }
     return 0;
 }
+// "fid R" processes the FID benchmark's FID R times with the defaults, printing each time.
+if (args is ["fid", var fidTimes])
+{
+    var bench = new FidProcessingBenchmarks();
+    bench.Setup();
+    var watch = System.Diagnostics.Stopwatch.StartNew();
+    for (var i = 0; i < int.Parse(fidTimes, System.Globalization.CultureInfo.InvariantCulture); i++)
+    {
+        watch.Restart();
+        bench.Automatic();
+        Console.Write($"{watch.Elapsed.TotalMilliseconds:F1} ");
+    }
+    Console.WriteLine("ms");
+    return 0;
+}
 // "repeat N R" runs the engine on a fully coupled N-spin system R times, for a profiler to attach to (dotnet-trace).
 if (args is ["repeat", var n, var r])
 {

@@ -7,7 +7,8 @@ namespace SpinSim.Core.Reporting;
 /// to its standard error in the concise form ("2.762000(8)"), the bootstrap error when there is one ("±0.000007"),
 /// and the group the row is listed in.
 /// </summary>
-public sealed record ParameterRow(string Label, string Value, string Bootstrap, ParameterGroup Group);
+/// <param name="Sign">For a coupling the sign search judged: "determined" or "undetermined" (its relative sign); otherwise empty.</param>
+public sealed record ParameterRow(string Label, string Value, string Bootstrap, ParameterGroup Group, string Sign = "");
 
 /// <summary>The fitted-parameter table shared by the text output, the HTML report and the figure.</summary>
 public static class FitTable
@@ -21,6 +22,7 @@ public static class FitTable
         ArgumentNullException.ThrowIfNull(result);
         var traces = Math.Max(1, result.Traces.Count);
         var byName = result.Parameters.ToDictionary(p => p.Name, StringComparer.Ordinal);
+        var signs = (result.Solutions?.Signs ?? []).ToDictionary(s => s.Parameter, StringComparer.Ordinal);
         return result.Parameters.Select((p, i) => (p, i))
             .Where(t => t.p.TiedWith is null || !result.Parameters.Take(t.i).Any(q => t.p.TiedWith.Split(", ").Contains(q.Name)))
             .Select(t =>
@@ -37,7 +39,8 @@ public static class FitTable
                       + (result.Setup?.Parameters[t.i].HeldBecause is not null ? " (held)" : " (fixed)");
                 var boot = result.Bootstrap?.StdErrors[t.i] is { } b && double.IsFinite(b) && t.p.Varied
                     ? "±" + new UncertainValue(0, b).RoundedUncertainty() : "";
-                return (Row: new ParameterRow(label, value, boot, ParameterDisplay.GroupOf(t.p.Kind)), Order: (int)ParameterDisplay.GroupOf(t.p.Kind));
+                var sign = signs.TryGetValue(t.p.Name, out var verdict) ? (verdict.Determined ? "determined" : "undetermined") : "";
+                return (Row: new ParameterRow(label, value, boot, ParameterDisplay.GroupOf(t.p.Kind), sign), Order: (int)ParameterDisplay.GroupOf(t.p.Kind));
             })
             .OrderBy(t => t.Order) // stable: file order within a group
             .Select(t => t.Row).ToList();

@@ -62,9 +62,10 @@ internal sealed class ParameterTableAnnotation : Annotation
         double width, double height)
     {
         var bootstrap = rows.Any(r => r.Bootstrap.Length > 0);
-        string[] header = bootstrap ? ["parameter", "value", "bootstrap"] : ["parameter", "value"];
-        var cells = rows.Select(r => bootstrap ? new[] { r.Label, r.Value, r.Bootstrap } : [r.Label, r.Value]).ToArray();
-        bool[] right = bootstrap ? [false, true, true] : [false, true];
+        var signs = rows.Any(r => r.Sign.Length > 0);
+        string[] header = ["parameter", "value", .. bootstrap ? new[] { "bootstrap" } : [], .. signs ? new[] { "relative sign" } : []];
+        var cells = rows.Select(r => new[] { r.Label, r.Value }.Concat(bootstrap ? [r.Bootstrap] : []).Concat(signs ? [r.Sign] : []).ToArray()).ToArray();
+        bool[] right = [false, true, .. bootstrap ? new[] { true } : [], .. signs ? new[] { false } : []];
         // At each text size, the most side-by-side blocks that fit the width (the shortest table), at most two rows deep
         // per block unless the rows are few; the first size whose table fits the height wins.
         for (var scale = 1.0; scale >= smallestScale - 1e-9; scale -= 0.05)

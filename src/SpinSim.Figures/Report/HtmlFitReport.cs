@@ -84,14 +84,14 @@ public static class HtmlFitReport
         if (data.Parameters is { Count: > 0 } parameters)
         {
             var bootstrap = parameters.Any(p => p.Bootstrap.Length > 0);
-            string[] header = bootstrap ? ["parameter", "value (standard error)", "bootstrap"] : ["parameter", "value (standard error)"];
+            var signs = parameters.Any(p => p.Sign.Length > 0);
+            string[] header = ["parameter", "value (standard error)", .. bootstrap ? new[] { "bootstrap" } : [], .. signs ? new[] { "relative sign" } : []];
             var rows = new List<XElement>();
             foreach (var group in parameters.GroupBy(p => p.Group))
             {
                 rows.Add(E("tr", E("th", new XAttribute("class", "group"), new XAttribute("colspan", header.Length), ParameterDisplay.GroupHeading(group.Key))));
-                rows.AddRange(group.Select(p => E("tr", bootstrap
-                    ? new[] { Cell(p.Label), Num(p.Value), Num(p.Bootstrap) }
-                    : [Cell(p.Label), Num(p.Value)])));
+                rows.AddRange(group.Select(p => E("tr", new[] { Cell(p.Label), Num(p.Value) }
+                    .Concat(bootstrap ? [Num(p.Bootstrap)] : []).Concat(signs ? [Cell(p.Sign)] : []))));
             }
             body.Add(E("table", E("thead", E("tr", header.Select(h => E("th", h)))), E("tbody", rows)));
             if (!string.IsNullOrWhiteSpace(data.TableKey)) body.Add(E("p", new XAttribute("class", "note"), data.TableKey));

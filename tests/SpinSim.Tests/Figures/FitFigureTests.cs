@@ -1,3 +1,4 @@
+using SpinSim.Core.Reporting;
 using SpinSim.Figures;
 using SpinSim.Figures.Plots;
 
@@ -14,6 +15,19 @@ public sealed class FitFigureTests
         var png = FigureRenderer.Render(model, FigureFormat.Png, options);
         FigureSamples.Keep(name, png);
         return new PixelProbe(png, model, options.Dpi);
+    }
+
+    [Fact]
+    public void The_table_has_a_relative_sign_column_only_when_a_row_has_a_verdict()
+    {
+        // Issue 18: the figure's table says for each coupling whether its relative sign is determined.
+        var plain = FigureSamples.Fit();
+        var withSigns = plain with { Parameters = [.. plain.Parameters, new ParameterRow("J(H1,H2)/Hz", "7.52(2)", "", ParameterGroup.Spin, "determined")] };
+        string Svg(FitFigureData d) => System.Text.Encoding.UTF8.GetString(FigureRenderer.Render(FitFigure.Create(d, Options), FigureFormat.Svg, Options));
+        Assert.DoesNotContain("relative sign", Svg(plain));
+        var svg = Svg(withSigns);
+        Assert.Contains("relative sign", svg);
+        Assert.Contains(">determined<", svg);
     }
 
     [Fact]

@@ -48,6 +48,11 @@ public class SignSearchTests
         Assert.Contains("j:B-X", signs["j:A-X"].RelativeTo);
         Assert.True(signs["j:B-X"].Determined);
         Assert.True(result.Solutions.SignPatternsTried >= 3);
+
+        // The shared table (text, HTML, figure) carries each coupling's verdict, and nothing on the other rows.
+        var rows = SpinSim.Core.Reporting.FitTable.Rows(result);
+        Assert.Equal("determined", rows.Single(r => r.Label.StartsWith("J(A,X)", StringComparison.Ordinal)).Sign);
+        Assert.All(rows.Where(r => r.Label.StartsWith('δ')), r => Assert.Equal("", r.Sign));
     }
 
     [Fact]
@@ -84,6 +89,7 @@ public class SignSearchTests
         Assert.All(result.Solutions.Signs, s => Assert.False(s.Determined));
         Assert.All(result.Solutions.Signs, s => Assert.Contains("weakly coupled", s.Reason));
         Assert.Equal(0, result.Solutions.SignPatternsTried);
+        Assert.All(SpinSim.Core.Reporting.FitTable.Rows(result).Where(r => r.Label.StartsWith('J')), r => Assert.Equal("undetermined", r.Sign));
     }
 
     [Fact]
