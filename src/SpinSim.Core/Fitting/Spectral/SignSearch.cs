@@ -28,8 +28,11 @@ internal static class SignSearch
     /// <summary>A held sign keeps a coupling at least this far (Hz) from zero, so that the optimum still has the sign.</summary>
     private const double HeldSignFloorHz = 1e-3;
 
-    /// <summary>The search's outcome: every optimum reached, and how many sign patterns and second solutions were tried.</summary>
-    public sealed record Outcome(IReadOnlyList<FitOptimum> Optima, int Patterns, int SecondSolutions);
+    /// <summary>
+    /// The search's outcome: every optimum reached, how many sign patterns and second solutions were tried, and the sign
+    /// groups it searched (the report judges the same groups, so that a verdict never rests on patterns nobody tried).
+    /// </summary>
+    public sealed record Outcome(IReadOnlyList<FitOptimum> Optima, int Patterns, int SecondSolutions, IReadOnlyList<SignGroup> Groups);
 
     public static Outcome Run(SpinSystem start, ParameterLayout layout, FitOptimum best, (double[] Lower, double[] Upper) bounds,
         Func<IReadOnlyList<FitStart>, IReadOnlyList<FitOptimum>> refit, CancellationToken cancel)
@@ -40,7 +43,8 @@ internal static class SignSearch
         var fitted = layout.ApplySpin(start, layout.Expand(current.Free));
         var freeOfCoupling = FreeOfCoupling(layout, start.Couplings.Count);
         var searchable = SearchableCouplings(layout, freeOfCoupling, bounds);
-        foreach (var group in CouplingSigns.Groups(fitted, searchable))
+        var groups = CouplingSigns.Groups(fitted, searchable);
+        foreach (var group in groups)
         {
             if (cancel.IsCancellationRequested) break;
             var free = group.Couplings.Select(c => freeOfCoupling[c]).Distinct().ToList();
@@ -65,7 +69,7 @@ internal static class SignSearch
 
         var second = SecondSolutions(start, layout, fitted, current, bounds).ToList();
         if (second.Count > 0 && !cancel.IsCancellationRequested) optima.AddRange(refit(second));
-        return new Outcome(optima, patterns, second.Count);
+        return new Outcome(optima, patterns, second.Count, groups);
     }
 
     private static bool Touches(SpinSystem system, SignGroup group, Coupling c) =>

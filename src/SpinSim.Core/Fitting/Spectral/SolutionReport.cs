@@ -40,8 +40,7 @@ internal static class SolutionReport
 
         var fittedSystem = layout.ApplySpin(problem.System, layout.Expand(polished.Parameters));
         var freeOfCoupling = SignSearch.FreeOfCoupling(layout, problem.System.Couplings.Count);
-        var searchable = SignSearch.SearchableCouplings(layout, freeOfCoupling, layout.FreeBounds());
-        var groups = CouplingSigns.Groups(fittedSystem, searchable);
+        var groups = search.Groups;
         var varied = Enumerable.Range(0, freeOfCoupling.Length).Where(c => freeOfCoupling[c] >= 0).ToHashSet();
         int[] Signs(double[] free) => freeOfCoupling.Select((f, c) =>
             Math.Sign(f >= 0 ? free[f] : problem.System.Couplings[c].J.Value)).ToArray();

@@ -69,7 +69,7 @@ public static class SpectrumFitter
         var starts = StartPoints(problem, search.Layout, search.Options).Select(search.Aligned).ToList();
         var (outcomes, joined) = search.RunStarts(starts.Select((x, k) => new FitStart(x, k == 0 ? "the given start" : $"start {k + 1}")).ToList());
         var bestCost = outcomes.Min(o => o.Cost);
-        var atBest = outcomes.Where(o => o.Cost <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
+        var atBest = AtBest(outcomes, bestCost);
         var best = PreferUserLabels(search.Layout, atBest, starts[0]);
 
         // The relative signs of couplings change a second-order spectrum, and a start keeps the signs it was given:
@@ -83,13 +83,17 @@ public static class SpectrumFitter
             optima.AddRange(signs.Optima);
             var overall = optima.Min(o => o.Cost);
             if (overall < best.Cost * (1 - SameOptimumTolerance))
-                best = PreferUserLabels(search.Layout, optima.Where(o => o.Cost <= overall * (1 + SameOptimumTolerance) + 1e-300).ToList(), starts[0]);
+                best = PreferUserLabels(search.Layout, AtBest(optima, overall), starts[0]);
         }
         var result = search.Finish(best.Free, best.Result, starts.Count, atBest.Count, joined, out var polished);
         if (signs is null || search.Options.Cancel.IsCancellationRequested) return result;
         return SolutionReport.Attach(result, problem, search.Layout, best, polished, optima, signs,
             (a, b) => SpinDistanceHz(problem, search.Layout, a, b), JoinFraction * StartWidthHz(problem), search.Polish);
     }
+
+    /// <summary>The optima whose cost is within <see cref="SameOptimumTolerance"/> of <paramref name="bestCost"/>: the same optimum reached again.</summary>
+    private static List<FitOptimum> AtBest(IEnumerable<FitOptimum> optima, double bestCost) =>
+        optima.Where(o => o.Cost <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
 
     /// <summary>
     /// Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'), and every system has its
