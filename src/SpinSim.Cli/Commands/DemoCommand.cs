@@ -80,9 +80,14 @@ public static class DemoCommand
         }
         summary["simulated"] = simulated;
 
-        // 2. Two synthetic measured traces from invented true values, fitted from the example files' values.
+        // 2. Three synthetic measured traces from invented true values, fitted from the example files' values: an AA'BB'
+        // ring, an ABX with a 1H X, and the AB part of an ABX whose X is 19F (two solutions fit it equally well).
         var fits = new JsonArray();
-        foreach (var (tag, start) in new[] { ("aabb", "para-ring-aabb.toml"), ("abx", "abx-stereocentre.toml") })
+        foreach (var (tag, start, seed, phaseError) in new[]
+                 {
+                     ("aabb", "para-ring-aabb.toml", "11", "1.5"), ("abx", "abx-stereocentre.toml", "12", "-2.0"),
+                     ("abf", "fluoro-alkene-ab.toml", "13", "0"),
+                 })
         {
             var truth = Path.Combine(outDir, $"truth-{tag}.toml");
             var setup = Path.Combine(outDir, $"fit-{tag}.toml");
@@ -90,7 +95,7 @@ public static class DemoCommand
             WriteResource($"fit-{tag}.toml", setup);
             var measured = Path.Combine(outDir, $"measured-{tag}.jdx");
             Step("simulate", truth, "--spectrum", measured, "--jcamp-form", "difdup", "--points", Points.ToString(),
-                "--noise", "0.005", "--seed", tag == "aabb" ? "11" : "12", "--phase-error", tag == "aabb" ? "1.5" : "-2.0");
+                "--noise", "0.005", "--seed", seed, "--phase-error", phaseError);
             var report = Path.Combine(outDir, $"fit-{tag}.json");
             // The ABX fit also runs the block bootstrap, to show the second error estimate, and draws its figure at the
             // width of one journal column (85 mm); the AA'BB' figure is two columns wide.
