@@ -63,7 +63,7 @@ public static class FidProcessor
             ? new ProcessingStep("window", "none", [])
             : new ProcessingStep("window", o.Window == WindowShape.Exponential ? "exponential" : "Gaussian", [new("width_hz", o.WindowHz, "Hz")]));
         steps.Add(new ProcessingStep("zero_fill", $"{n} acquired complex points to {size}", [new("acquired_points", n, "points"), new("points", size, "points")]));
-        steps.Add(new ProcessingStep("fourier_transform", "complex FFT (MathNet.Numerics)", [new("spectral_width_hz", sw, "Hz")]));
+        steps.Add(new ProcessingStep("fourier_transform", $"complex FFT, {Fft.Name}", [new("spectral_width_hz", sw, "Hz")]));
 
         var real = new double[size];
         MinimumEntropyPhasing.Apply(spectrum, p0, p1, real);

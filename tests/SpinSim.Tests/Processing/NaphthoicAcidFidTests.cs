@@ -43,6 +43,32 @@ public class NaphthoicAcidFidTests
     }
 
     [ReferenceFact]
+    public void A_filter_delay_stated_in_the_file_is_used_and_recorded()
+    {
+        // Private label ##$GRPDLY= (the filter's group delay in points, as some exports write it; from memory of such
+        // files) added to the real FID: the stated delay replaces the search, and -1 means "not stated".
+        var text = File.ReadAllText(ReferenceData.PathOf("jcamp", "naphthoic-acid-1h-500mhz-fid.dx"));
+        var found = Ours().Origin.Processing!.Step("filter_delay")!.Value("points")!.Value;
+        var folder = Directory.CreateTempSubdirectory("spinsim-grpdly-").FullName;
+        string WithDelay(string value)
+        {
+            var path = Path.Combine(folder, $"fid-{value}.dx");
+            var firstLineEnd = text.IndexOf('\n');
+            File.WriteAllText(path, text[..(firstLineEnd + 1)] + $"##$GRPDLY= {value}\n" + text[(firstLineEnd + 1)..]);
+            return path;
+        }
+        var stated = SpectrumFiles.ReadData(WithDelay("53.25"));
+        Assert.Equal(53.25, stated.Fid!.StatedFilterDelayPoints);
+        var step = stated.ToTrace().Origin.Processing!.Step("filter_delay")!;
+        Assert.Equal("stated in the file", step.How);
+        Assert.Equal(53.25, step.Value("points"));
+        Assert.InRange(found, 52.5, 54.5); // the search found nearly the same delay without the label
+
+        Assert.Null(SpectrumFiles.ReadData(WithDelay("-1")).Fid!.StatedFilterDelayPoints);
+        Directory.Delete(folder, recursive: true);
+    }
+
+    [ReferenceFact]
     public void Default_processing_is_phased()
     {
         var t = Ours();
