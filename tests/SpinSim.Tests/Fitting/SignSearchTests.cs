@@ -78,6 +78,26 @@ public class SignSearchTests
     }
 
     [Fact]
+    public void ASignTheSpectrumDoesNotDecideKeepsTheStartsSign()
+    {
+        // CH3-CH=CH- at 60 MHz (invented values) fitted over the vinyl H only: the AB part of an ABX3 does not decide the
+        // sign of J(A,B) (the ABX analysis, Pople, Schneider & Bernstein 1959, ch. 6), so the report calls it undetermined
+        // and the result keeps the sign the user started with rather than whichever the noise favours.
+        var truth = SpinSystem.Create(new FieldMHz(60),
+            [new("HA", 6.98), new("HB", 5.84), new Nucleus("Me", 1.88, 3)],
+            [new("HA", "HB", 15.6), new("HA", "Me", 6.9), new("HB", "Me", -1.7)]);
+        var setup = new FitSetup { Regions = [new PpmRange(7.55, 5.55)] };
+        foreach (var seed in new[] { 5, 6, 7 })
+        {
+            var trace = Synthetic(truth, 0.8, 16384, 0.015, seed);
+            var result = SpectrumFitter.Fit(Problem(truth, trace, setup, 0.8), new SpectrumFitOptions(Starts: 4));
+            var ab = result.Solutions!.Signs.Single(s => s.Parameter == "j:HA-HB");
+            Assert.False(ab.Determined, $"seed {seed}: {ab.Reason}");
+            Assert.True(result.FittedSystem.Couplings[0].J.Value > 0, $"seed {seed}: J(HA,HB) = {result.FittedSystem.Couplings[0].J.Value}");
+        }
+    }
+
+    [Fact]
     public void FirstOrderAmxReportsEverySignUndetermined()
     {
         // Every |dnu/J| above 20 at 400 MHz (invented values): the spectrum depends on |J| alone.

@@ -96,12 +96,14 @@ public static class SpectrumFitter
         optima.Where(o => o.Cost <= bestCost * (1 + SameOptimumTolerance) + 1e-300).ToList();
 
     /// <summary>
-    /// Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'), and every system has its
-    /// mirror with all couplings reversed: keep the user's labels and overall sign by taking, among optima at the best
-    /// cost, the one whose shifts moved least from the given start, then the one whose couplings keep most of its signs.
+    /// Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'), every system has its mirror
+    /// with all couplings reversed, and some signs the spectrum does not decide (J(A,B) in the AB part of an ABX): keep
+    /// the user's labels and signs by taking, among optima at the best cost, the one whose shifts moved least from the
+    /// given start, then the one whose couplings keep most of its signs. Shift distances are compared in steps of
+    /// <see cref="RelabelStepPpm"/>: a relabelling moves shifts by their differences, an undecided sign by far less.
     /// </summary>
     private static FitOptimum PreferUserLabels(ParameterLayout layout, IReadOnlyList<FitOptimum> atBest, double[] start) =>
-        atBest.OrderBy(o => Math.Round(ShiftDistance(layout, o.Free, start), 9))
+        atBest.OrderBy(o => Math.Round(ShiftDistance(layout, o.Free, start) / RelabelStepPpm))
             .ThenBy(o => Enumerable.Range(0, layout.FreeCount).Count(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.JHz
                 && Math.Sign(o.Free[f]) != Math.Sign(start[f]))).First();
 
@@ -346,6 +348,9 @@ public static class SpectrumFitter
         }
         return largest;
     }
+
+    /// <summary>Shift distances (summed over the free shifts) closer than this are the same for <see cref="PreferUserLabels"/>.</summary>
+    private const double RelabelStepPpm = 1e-3;
 
     private static double ShiftDistance(ParameterLayout layout, double[] a, double[] b) =>
         Enumerable.Range(0, layout.FreeCount).Where(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.ShiftPpm)
