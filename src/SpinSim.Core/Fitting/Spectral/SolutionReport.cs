@@ -69,7 +69,9 @@ internal static class SolutionReport
             var full = layout.Expand(refined.Parameters);
             var differences = Enumerable.Range(0, layout.Parameters.Count)
                 .Where(i => layout.Parameters[i].Kind is ParameterKind.ShiftPpm or ParameterKind.JHz && layout.FreeIndexOf(i) >= 0)
-                .Where(i => Math.Abs(full[i] - bestFull[i]) > SignificantDifference(layout, i, polished))
+                // A coupling that differs only in sign is the sign report's business, not another solution's.
+                .Where(i => (layout.Parameters[i].Kind == ParameterKind.JHz ? Math.Abs(Math.Abs(full[i]) - Math.Abs(bestFull[i])) : Math.Abs(full[i] - bestFull[i]))
+                    > SignificantDifference(layout, i, polished))
                 .Select(i => new ParameterDifference(layout.Parameters[i].Name, layout.Parameters[i].Unit, bestFull[i], full[i])).ToArray();
             if (differences.Length == 0) continue;
             alternatives.Add((full, new AlternativeSolution(Math.Max(1, ratio), MisfitComparison.Probability(Math.Max(1, ratio), effective, p), o.Origin, differences)));
