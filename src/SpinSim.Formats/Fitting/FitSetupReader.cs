@@ -24,6 +24,7 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 /// baseline_order = 1                  # 0 constant, 1 linear, up to 3
 /// offset = true                       # small frequency offset per trace
 /// phase = true                        # zero-order phase error per trace
+/// first_order_phase = true            # also a first-order phase per trace, degrees per ppm about the regions' centre
 /// linewidth_per_nucleus = false
 /// starts = 8
 /// lineshape = "lorentzian"            # gaussian, voigt
@@ -39,7 +40,7 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 public static class FitSetupReader
 {
     private static readonly string[] Keys =
-        ["regions_ppm", "exclude_ppm", "vary", "fix", "hold_sign", "tie", "baseline_order", "offset", "phase", "linewidth_per_nucleus", "starts", "lineshape",
+        ["regions_ppm", "exclude_ppm", "vary", "fix", "hold_sign", "tie", "baseline_order", "offset", "phase", "first_order_phase", "linewidth_per_nucleus", "starts", "lineshape",
          "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric", "linewidth_per_trace", "set_shift_ppm"];
 
     private static readonly string[] FidKeys = ["window", "window_hz", "points", "filter_delay_points", "phase_deg", "baseline_order"];
@@ -154,6 +155,7 @@ public static class FitSetupReader
                     break;
                 case "offset": setup = setup with { FitOffset = Bool(path, e) }; break;
                 case "phase": setup = setup with { FitPhase = Bool(path, e) }; break;
+                case "first_order_phase": setup = setup with { FitFirstOrderPhase = Bool(path, e) }; break;
                 case "linewidth_per_nucleus": setup = setup with { PerNucleusWidth = Bool(path, e) }; break;
                 case "hold_shifts_outside_regions": setup = setup with { HoldShiftsOutsideRegions = Bool(path, e) }; break;
                 case "tie_symmetric": setup = setup with { TieSymmetric = Bool(path, e) }; break;

@@ -1,3 +1,4 @@
+using SpinSim.Core.Fitting.Spectral;
 using SpinSim.Core.Reporting;
 using SpinSim.Core.Traces;
 using SpinSim.Figures;

@@ -1,3 +1,4 @@
+using SpinSim.Core.Fitting.Spectral;
 using System.Text;
 using System.Text.RegularExpressions;
 using System.Xml.Linq;

@@ -8,7 +8,8 @@ namespace SpinSim.Tests.Fitting;
 
 /// <summary>
 /// The fit model's analytic Jacobian (shift and coupling columns from the engine's line derivatives through lineshape,
-/// phase, offset, fade and window taper; width, offset, phase, scale and baseline columns) against central differences
+/// phase, phase ramp, offset, fade and window taper; width, offset, phase, phase slope, scale and baseline columns) against
+/// central differences
 /// of the model's own residuals. Systems and traces are invented.
 /// </summary>
 public class SpectralModelJacobianTests
@@ -34,14 +35,16 @@ public class SpectralModelJacobianTests
     {
         var truth = name switch { "eight" => EightSpins(), "aabb" => SpectrumFitTestData.AaBb(), _ => SpectrumFitTestData.Abx() };
         var trace = SpectrumFitTestData.Synthetic(truth, 0.8, 8192, 0.01, 3, phaseDeg: 4);
-        var setup = new FitSetup { FitOffset = true, FitPhase = true, BaselineOrder = 1, Ties = name == "aabb" ? SpectrumFitTestData.AaBbTies : [] };
-        // Evaluate away from the truth, with a phase and offset set, so that every term of the derivative is in play.
+        var setup = new FitSetup { FitOffset = true, FitFirstOrderPhase = true, BaselineOrder = 1, Ties = name == "aabb" ? SpectrumFitTestData.AaBbTies : [] };
+        // Evaluate away from the truth, with a phase, a phase slope and an offset set, so that every term of the derivative
+        // is in play (the slope turns each line's phase as the line moves, which enters every shift and coupling column).
         var start = SpectrumFitTestData.Perturbed(truth, i => 0.7 * (i % 2 == 0 ? 1 : -1), i => 1.03);
         var regions = FitSetup.DefaultRegions(start, trace.ObserveMHz!.Value, 0.8);
         var parameters = setup.BuildParameters(start, 1, 0.8).Select(p => p.Kind switch
         {
             ParameterKind.OffsetHz => p with { Start = 0.3 },
             ParameterKind.PhaseDeg => p with { Start = 6 },
+            ParameterKind.PhaseDegPerPpm => p with { Start = 9 },
             _ => p,
         }).ToList();
         var layout = new ParameterLayout(parameters, setup.Ties);
@@ -62,7 +65,7 @@ public class SpectralModelJacobianTests
             {
                 ParameterKind.ShiftPpm => 1e-4 / data.ObserveMHz, // 1e-4 Hz
                 ParameterKind.JHz or ParameterKind.LinewidthHz or ParameterKind.OffsetHz => 1e-4,
-                ParameterKind.PhaseDeg => 1e-3,
+                ParameterKind.PhaseDeg or ParameterKind.PhaseDegPerPpm => 1e-3,
                 _ => 1e-6,
             };
             var plus = new double[model.ResidualCount];

@@ -23,6 +23,12 @@ public sealed record FitDataset(SpectrumTrace Trace, IReadOnlyList<PpmRange> Reg
     public IReadOnlyList<string> Processing { get; init; } = [];
 
     public double ObserveMHz => Trace.ObserveMHz ?? throw new InvalidOperationException("a fitted trace needs its observe frequency");
+
+    /// <summary>
+    /// The centre of the fitted regions, in ppm: the middle of the baseline polynomial's variable and the pivot of the
+    /// first-order phase (about which that phase barely correlates with the zero-order one).
+    /// </summary>
+    public double CentrePpm => (Regions.Max(r => r.High) + Regions.Min(r => r.Low)) / 2;
 }
 
 /// <summary>
@@ -80,7 +86,7 @@ internal sealed class PreparedData
             selected.Select(i => t.ShiftPpm[i] * mhz).ToArray(),
             selected.Select(i => t.ShiftPpm[i]).ToArray(),
             selected.Select(i => t.Intensity[i] / norm).ToArray(),
-            mhz, norm, (high + low) / 2, Math.Max((high - low) / 2, 1e-9), selected);
+            mhz, norm, data.CentrePpm, Math.Max((high - low) / 2, 1e-9), selected);
     }
 
     /// <summary>

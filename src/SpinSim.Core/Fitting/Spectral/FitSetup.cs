@@ -28,6 +28,14 @@ public sealed record FitSetup
     public int BaselineOrder { get; init; }
     public bool FitOffset { get; init; }
     public bool FitPhase { get; init; }
+
+    /// <summary>
+    /// Fit a first-order phase per trace (<c>phase_deg_per_ppm</c>, degrees per ppm about the centre of the trace's fitted
+    /// regions) beside the zero-order one, which it switches on too: a ramp needs its level. Off by default, so the phase
+    /// slope is 0 unless asked for: a processed spectrum is normally phased, and a slope that fits noise would cost the
+    /// shifts precision.
+    /// </summary>
+    public bool FitFirstOrderPhase { get; init; }
     public bool PerNucleusWidth { get; init; }
     public int Starts { get; init; } = 8;
 
@@ -184,15 +192,27 @@ public sealed record FitSetup
             list.Add(Make("scale" + at, ParameterKind.Scale, [], d, 0, 1, 0, double.PositiveInfinity));
             for (var k = 0; k <= BaselineOrder; k++)
                 list.Add(Make($"baseline{k}{at}", ParameterKind.Baseline, [], d, k, 0, double.NegativeInfinity, double.PositiveInfinity));
-            if (FitOffset) list.Add(Make("offset_hz" + at, ParameterKind.OffsetHz, [], d, 0, 0, -10, 10));
-            if (FitPhase) list.Add(Make("phase_deg" + at, ParameterKind.PhaseDeg, [], d, 0, 0, -45, 45));
+            foreach (var kind in TraceTerms())
+            {
+                var info = ParameterKindInfo.Of(kind);
+                var (start, lower, upper) = info.OptionalTraceTerm!.Value;
+                list.Add(Make(info.Key + at, kind, [], d, 0, start, lower, upper));
+            }
         }
         return list;
     }
 
+    /// <summary>The optional per-trace terms this setup asks for, each named by its kind's key.</summary>
+    private IEnumerable<ParameterKind> TraceTerms()
+    {
+        if (FitOffset) yield return ParameterKind.OffsetHz;
+        if (FitPhase || FitFirstOrderPhase) yield return ParameterKind.PhaseDeg;
+        if (FitFirstOrderPhase) yield return ParameterKind.PhaseDegPerPpm;
+    }
+
     private FitParameter Make(string name, ParameterKind kind, IReadOnlyList<string> nuclei, int dataset, int index, double start, double lower, double upper)
     {
-        var vary = Vary.Any(p => Matches(p, name)) || kind is ParameterKind.OffsetHz or ParameterKind.PhaseDeg;
+        var vary = Vary.Any(p => Matches(p, name)) || ParameterKindInfo.Of(kind).OptionalTraceTerm is not null;
         if (Fix.Any(p => Matches(p, name))) vary = false;
         var given = Bounds.TryGetValue(name, out var b);
         if (given) (lower, upper) = (Math.Min(b.Low, b.High), Math.Max(b.Low, b.High));

@@ -7,7 +7,9 @@ namespace SpinSim.Core.Fitting.Spectral;
 
 /// <summary>
 /// The least-squares model of a spectrum fit: free values -> spin system -> lines at each trace's field -> trace on the
-/// fitted points, with scale, polynomial baseline, frequency offset and zero-order phase per trace. Residual = model - data.
+/// fitted points, with scale, polynomial baseline, frequency offset, zero- and first-order phase per trace. Residual = model - data.
+/// Each parameter enters through its kind's <see cref="ParameterKindInfo"/> (the spin system, or the <see cref="TraceState"/>
+/// of one trace); what a trace value does to a line, and that line's derivatives, are here.
 /// The Jacobian is analytic where the engine can differentiate the lines (one diagonalisation per evaluation);
 /// otherwise its columns are central differences, for which line lists are cached by their shift and coupling values
 /// so that derivatives in the other parameters cost no diagonalisation. <see cref="Residuals"/> and <see cref="Model"/>
@@ -79,10 +81,8 @@ internal sealed class SpectralModel : ILeastSquaresModel
         var derivatives = new List<SpinParameter>();
         foreach (var i in _spinParameters)
         {
-            var p = layout.Parameters[i];
-            var c = p.Kind == ParameterKind.JHz ? system.Couplings[p.Index] : null;
             _derivativeOf[i] = derivatives.Count;
-            derivatives.Add(c is null ? new SpinParameter(p.Index) : new SpinParameter(system.IndexOf(c.A), system.IndexOf(c.B)));
+            derivatives.Add(ParameterKindInfo.Of(layout.Parameters[i].Kind).EngineDerivative!(system, layout.Parameters[i]));
         }
         _derivatives = derivatives.ToArray();
         // Line derivatives come from the whole system diagonalised as one (a split plan depends on structure only, so the
@@ -120,7 +120,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
 
     /// <summary>
     /// Scale and baseline columns are exact (the model is linear in them). Shift, coupling, common width, offset and
-    /// phase columns are analytic when the engine can give line derivatives (<see cref="AnalyticColumns"/>); otherwise,
+    /// phase (both orders) columns are analytic when the engine can give line derivatives (<see cref="AnalyticColumns"/>); otherwise,
     /// and for widths per entry, they are central differences of the model (which for widths, offsets and phases reuse
     /// the cached line lists).
     /// </summary>
@@ -138,8 +138,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
                 for (var r = 0; r < ResidualCount; r++) jacobian[r, f] = 0;
                 continue;
             }
-            if (_analytic && members.All(m => m.Kind is ParameterKind.ShiftPpm or ParameterKind.JHz or ParameterKind.OffsetHz or ParameterKind.PhaseDeg
-                    || (m.Kind == ParameterKind.LinewidthHz && m.Index < 0)))
+            if (_analytic && members.All(m => ParameterKindInfo.Of(m.Kind).AnalyticColumn(m)))
             {
                 analytic.Add(f);
                 continue;
@@ -220,13 +219,15 @@ internal sealed class SpectralModel : ILeastSquaresModel
         var values = Values(full, d);
         var (offsetHz, globalWidth) = (values.OffsetHz, values.GlobalWidth);
         if (!(globalWidth > 0)) return false;
-        var (widthColumn, offsetColumn, phaseColumn) = (Column(values.WidthIndex), Column(values.OffsetIndex), Column(values.PhaseIndex));
+        // The per-trace terms with a column of their own, in the order of their slots after the spin derivatives.
+        var terms = LineTerms.Select(k => Column(values.SourceOf(k))).ToArray();
         var areaScale = values.Scale / _singleNucleus / data.Normalisation;
         var count = _derivatives.Length;
-        // One column of the fitted points per spin derivative, then width, offset and phase (kept between calls: at
-        // full resolution it is megabytes, and the Jacobian is asked for at every accepted step).
-        var columns = _columns.Length >= data.Count * (count + 3) ? _columns : _columns = new double[data.Count * (count + 3)];
-        Array.Clear(columns, 0, data.Count * (count + 3));
+        // One column of the fitted points per spin derivative, then one per line term (kept between calls: at full
+        // resolution it is megabytes, and the Jacobian is asked for at every accepted step).
+        var slots = count + LineTerms.Length;
+        var columns = _columns.Length >= data.Count * slots ? _columns : _columns = new double[data.Count * slots];
+        Array.Clear(columns, 0, data.Count * slots);
         var work = _workspace;
         var a = new double[count];
         var b = new double[count];
@@ -240,9 +241,9 @@ internal sealed class SpectralModel : ILeastSquaresModel
         // 1e-9 of one nucleus's line, far below anything the minimiser or the covariance can see.
         var negligible = 1e-9 * _singleNucleus;
         var profile = _shape.Profile(globalWidth, _broadeningHz);
-        var phase = PhaseRotation.FromDegrees(values.PhaseDeg);
-        var slopes = (Width: widthColumn >= 0, Phase: phaseColumn >= 0);
-        var others = widthColumn >= 0 || offsetColumn >= 0 || phaseColumn >= 0;
+        var wantedTerms = new LineTermsWanted(terms[0] >= 0, terms[2] >= 0, terms[3] >= 0);
+        var others = terms.Any(t => t >= 0);
+        var ramp = values.Ramp(data);
         for (var l = 0; l < lines.Lines.Count; l++)
         {
             var (effective, fade, dEffective) = Faded(lines.Lines[l].Intensity);
@@ -263,7 +264,8 @@ internal sealed class SpectralModel : ILeastSquaresModel
                 active[activeCount++] = g;
             }
             if (activeCount == 0 && !others) continue;
-            AddLineDerivatives(data.Hz, columns, count, lines.Lines[l].FrequencyHz + offsetHz, cutoff, profile, phase, slopes,
+            var centreHz = lines.Lines[l].FrequencyHz + offsetHz;
+            AddLineDerivatives(data.Hz, columns, count, centreHz, cutoff, profile, ramp.At(centreHz), ramp, wantedTerms,
                 active.AsSpan(0, activeCount), a, b, c, areaScale * effective, work);
         }
 
@@ -278,24 +280,32 @@ internal sealed class SpectralModel : ILeastSquaresModel
             var g = _derivativeOf[i];
             for (var k = 0; k < data.Count; k++) jacobian[row0 + k, f] += factor * columns[g * data.Count + k];
         }
-        foreach (var (column, slot) in new[] { (widthColumn, count), (offsetColumn, count + 1), (phaseColumn, count + 2) })
-            if (column >= 0)
-                for (var k = 0; k < data.Count; k++) jacobian[row0 + k, column] += columns[slot * data.Count + k];
+        for (var t = 0; t < terms.Length; t++)
+            if (terms[t] >= 0)
+                for (var k = 0; k < data.Count; k++) jacobian[row0 + k, terms[t]] += columns[(count + t) * data.Count + k];
         return true;
     }
+
+    /// <summary>The per-trace terms that act on each line and have analytic columns: width, offset, phase, phase slope.</summary>
+    private static readonly ParameterKind[] LineTerms =
+        [ParameterKind.LinewidthHz, ParameterKind.OffsetHz, ParameterKind.PhaseDeg, ParameterKind.PhaseDegPerPpm];
+
+    private readonly record struct LineTermsWanted(bool Width, bool Phase, bool PhaseSlope);
 
     /// <summary>The Jacobian column of full parameter <paramref name="index"/>: its free index, or -1 when it is absent, fixed or held.</summary>
     private int Column(int index) => index >= 0 && _layout.FreeIndexOf(index) is var f && f >= 0 && !IsHeld(f) ? f : -1;
 
     /// <summary>
-    /// For one line at <paramref name="centreHz"/> whose rendered profile is v = k(x - centre) τ(|x - centre|, R) (k of
-    /// unit area with phase, τ the taper of <see cref="AddLine"/>, R its window's half-width): adds
-    /// a_n v + b_n ∂v/∂x + c_n ∂v/∂R to the column of spin derivative <paramref name="active"/>[n], and e ∂v/∂w,
-    /// -e ∂v/∂x and e ∂v/∂φ (per degree) to the width, offset and phase columns, over the line's window.
-    /// <paramref name="columns"/> holds one column of the fitted points per slot (spin derivatives, width, offset, phase).
+    /// For one line at <paramref name="centreHz"/> whose rendered profile is v = k(x - centre, φ(centre)) τ(|x - centre|, R)
+    /// (k of unit area with phase, φ the phase ramp's value at the centre, τ the taper of <see cref="AddLine"/>, R its
+    /// window's half-width): with v_x = -∂v/∂centre (which includes the ramp's turn of the phase as the line moves), adds
+    /// a_n v + b_n v_x + c_n ∂v/∂R to the column of spin derivative <paramref name="active"/>[n], and e ∂v/∂w, -e v_x,
+    /// e ∂v/∂φ (per degree) and e ∂v/∂φ · lever (per degree per ppm) to the width, offset, phase and phase-slope columns,
+    /// over the line's window. <paramref name="columns"/> holds one column of the fitted points per slot (spin
+    /// derivatives, then <see cref="LineTerms"/>).
     /// </summary>
     private static void AddLineDerivatives(double[] hz, double[] columns, int slots, double centreHz, double cutoff, LineProfile q,
-        PhaseRotation phase, (bool Width, bool Phase) wanted, ReadOnlySpan<int> active, double[] a, double[] b, double[] c, double e, Workspace work)
+        PhaseRotation phase, PhaseRamp ramp, LineTermsWanted wanted, ReadOnlySpan<int> active, double[] a, double[] b, double[] c, double e, Workspace work)
     {
         var reach = q.WindowHz(cutoff);
         var first = LowerBound(hz, centreHz - reach);
@@ -310,10 +320,13 @@ internal sealed class SpectralModel : ILeastSquaresModel
         var vw = work.Vw(length);
         var vp = work.Vp(length);
         var tapered = false;
+        // Radians of phase per Hz the line moves; the phase derivative is needed for it and for either phase column.
+        var turnPerHz = ramp.DegPerHz * (Math.PI / 180);
+        var byPhaseWanted = wanted.Phase || wanted.PhaseSlope || turnPerHz != 0;
         for (var j = 0; j < length; j++)
         {
             var dx = hz[first + j] - centreHz;
-            var (k, slope, byWidth, byPhase) = q.Slopes(dx, phase, wanted.Width, wanted.Phase);
+            var (k, slope, byWidth, byPhase) = q.Slopes(dx, phase, wanted.Width, byPhaseWanted);
             var distance = Math.Abs(dx);
             double taper = 1, taperByDistance = 0, taperByReach = 0;
             if (distance > taperStart)
@@ -326,7 +339,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
                 tapered = true;
             }
             v[j] = k * taper;
-            vx[j] = slope * taper + k * taperByDistance * Math.Sign(dx);
+            vx[j] = slope * taper + k * taperByDistance * Math.Sign(dx) - byPhase * taper * turnPerHz;
             vr[j] = k * taperByReach;
             vw[j] = byWidth * taper + vr[j] * cutoff * q.WidthScalePerWidth;
             vp[j] = byPhase * taper * (Math.PI / 180);
@@ -340,6 +353,7 @@ internal sealed class SpectralModel : ILeastSquaresModel
         if (wanted.Width) SmallDense.AddScaled(columns.AsSpan(slots * points + first, length), e, vw, 0, vw);
         SmallDense.AddScaled(columns.AsSpan((slots + 1) * points + first, length), -e, vx, 0, vx);
         if (wanted.Phase) SmallDense.AddScaled(columns.AsSpan((slots + 2) * points + first, length), e, vp, 0, vp);
+        if (wanted.PhaseSlope) SmallDense.AddScaled(columns.AsSpan((slots + 3) * points + first, length), e * ramp.LeverPpm(centreHz), vp, 0, vp);
     }
 
     /// <summary>Scratch profiles of one line, reused from line to line.</summary>
@@ -399,52 +413,40 @@ internal sealed class SpectralModel : ILeastSquaresModel
         var data = _data[d];
         var v = Values(full, d);
         var areaScale = v.Scale / _singleNucleus / data.Normalisation;
-        var phase = PhaseRotation.FromDegrees(v.PhaseDeg);
+        var ramp = v.Ramp(data);
         y.Clear();
         for (var l = 0; l < lines.Lines.Count; l++)
         {
-            var width = v.PerEntryWidth is { } perEntry ? lines.WeightedByOrigin(l, perEntry) : v.GlobalWidth;
+            var width = v.PerEntryWidthOrNull is { } perEntry ? lines.WeightedByOrigin(l, perEntry) : v.GlobalWidth;
             if (!(width > 0)) return false;
             var (effective, _, _) = Faded(lines.Lines[l].Intensity);
             if (effective == 0) continue;
-            AddLine(data.Hz, y, lines.Lines[l].FrequencyHz + v.OffsetHz, effective * areaScale, width, CutoffFor(effective), phase);
+            var centreHz = lines.Lines[l].FrequencyHz + v.OffsetHz;
+            AddLine(data.Hz, y, centreHz, effective * areaScale, width, CutoffFor(effective), ramp.At(centreHz));
         }
         AddBaseline(data, v.Baseline, y);
         return true;
     }
 
     /// <summary>
-    /// The values that shape trace <paramref name="d"/> at <paramref name="full"/>, with the full index each width,
-    /// offset and phase came from (-1 when the fit has none). Widths per entry default to the common width (or 1 Hz).
+    /// The values that shape trace <paramref name="d"/> at <paramref name="full"/>: each parameter of that trace (or
+    /// shared) enters as its kind says, and the full index of each analytic per-trace value is kept for its column.
     /// </summary>
-    private TraceValues Values(double[] full, int d)
+    private TraceState Values(double[] full, int d)
     {
-        double scale = 1, offsetHz = 0, phaseDeg = 0, globalWidth = double.NaN;
-        int widthIndex = -1, offsetIndex = -1, phaseIndex = -1;
-        var baseline = new List<(int Order, double Value)>();
-        double[]? perEntryWidth = null;
+        var state = new TraceState(_system.Nuclei.Count);
         for (var i = 0; i < full.Length; i++)
         {
             var p = _layout.Parameters[i];
             if (p.Dataset >= 0 && p.Dataset != d) continue;
-            switch (p.Kind)
-            {
-                case ParameterKind.Scale: scale = full[i]; break;
-                case ParameterKind.OffsetHz: (offsetHz, offsetIndex) = (full[i], i); break;
-                case ParameterKind.PhaseDeg: (phaseDeg, phaseIndex) = (full[i], i); break;
-                case ParameterKind.Baseline: baseline.Add((p.Index, full[i])); break;
-                case ParameterKind.LinewidthHz when p.Index < 0: (globalWidth, widthIndex) = (full[i], i); break;
-                case ParameterKind.LinewidthHz: (perEntryWidth ??= new double[_system.Nuclei.Count])[p.Index] = full[i]; break;
-            }
+            var info = ParameterKindInfo.Of(p.Kind);
+            if (info.EntersTrace is null) continue;
+            info.EntersTrace(state, p, full[i]);
+            if (info.AnalyticColumn(p)) state.Sources[p.Kind] = i;
         }
-        if (perEntryWidth is not null)
-            for (var e = 0; e < perEntryWidth.Length; e++)
-                if (perEntryWidth[e] == 0) perEntryWidth[e] = double.IsNaN(globalWidth) ? 1.0 : globalWidth;
-        return new TraceValues(scale, offsetHz, phaseDeg, globalWidth, baseline, perEntryWidth, widthIndex, offsetIndex, phaseIndex);
+        state.CompletePerEntryWidths();
+        return state;
     }
-
-    private sealed record TraceValues(double Scale, double OffsetHz, double PhaseDeg, double GlobalWidth, List<(int Order, double Value)> Baseline,
-        double[]? PerEntryWidth, int WidthIndex, int OffsetIndex, int PhaseIndex);
 
     /// <summary>
     /// The intensity a line is drawn with: none below <see cref="NegligibleIntensity"/> of one nucleus, faded in by a
