@@ -25,21 +25,27 @@ public static class SpectrumFitTestData
         [new("HA", 2.74), new("HB", 2.61), new("HX", 4.08)],
         [new("HA", "HB", -16.4), new("HA", "HX", 4.7), new("HB", "HX", 8.9)]);
 
-    /// <summary>A synthetic measured trace of <paramref name="system"/>: Lorentzian lines, seeded Gaussian noise (fraction of the tallest point).</summary>
-    public static SpectrumTrace Synthetic(SpinSystem system, double widthHz, int points, double noiseFraction, int seed, double phaseDeg = 0)
+    /// <summary>
+    /// A synthetic measured trace of <paramref name="system"/>: Lorentzian lines, seeded Gaussian noise (fraction of the
+    /// tallest point). With a phase error, each point is turned by the phase at its own frequency,
+    /// φ(δ) = <paramref name="phaseDeg"/> + <paramref name="phaseDegPerPpm"/> (δ - <paramref name="pivotPpm"/>), as a
+    /// spectrometer's first-order phase error does (not line by line, as the fit model draws it).
+    /// </summary>
+    public static SpectrumTrace Synthetic(SpinSystem system, double widthHz, int points, double noiseFraction, int seed, double phaseDeg = 0,
+        double phaseDegPerPpm = 0, double pivotPpm = 0)
     {
         var lines = SpectrumEngine.Compute(system);
         var settings = new SimulationSettings(new WidthHz(widthHz), Lineshape.Lorentzian, Points: points);
         var simulated = SpectrumSimulator.Simulate(system, lines, settings);
         var y = simulated.Trace.Intensity.ToArray();
-        if (phaseDeg != 0)
+        if (phaseDeg != 0 || phaseDegPerPpm != 0)
         {
-            // Dispersion part for a zero-order phase error: sum of Lorentzian dispersion profiles.
+            // Sums of Lorentzian absorption and dispersion profiles, combined with the phase at each point.
             var render = SpectrumSimulator.RenderLines(system, lines, new WidthHz(widthHz));
-            var (c, s) = (Math.Cos(phaseDeg * Math.PI / 180), Math.Sin(phaseDeg * Math.PI / 180));
             for (var i = 0; i < y.Length; i++)
             {
                 var hz = simulated.Grid.HzAt(i);
+                var phase = (phaseDeg + phaseDegPerPpm * (simulated.Trace.ShiftPpm[i] - pivotPpm)) * Math.PI / 180;
                 double absorption = 0, dispersion = 0;
                 foreach (var l in render)
                 {
@@ -48,7 +54,7 @@ public static class SpectrumFitTestData
                     absorption += l.Area / Math.PI * h / (dx * dx + h * h);
                     dispersion += l.Area / Math.PI * dx / (dx * dx + h * h);
                 }
-                y[i] = absorption * c - dispersion * s;
+                y[i] = absorption * Math.Cos(phase) - dispersion * Math.Sin(phase);
             }
         }
         if (noiseFraction > 0) NoiseGenerator.AddGaussian(y, noiseFraction * y.Max(), seed);
