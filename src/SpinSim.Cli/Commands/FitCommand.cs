@@ -125,8 +125,10 @@ public static class FitCommand
             }
 
             var progress = io.Verbosity == Verbosity.Quiet ? null : new ThrottledProgress(io.Error);
-            var result = SpectrumFitter.Fit(problem, new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed), SignSearch: !parse.GetValue(signsAsGiven),
-                Progress: progress, Cancel: io.Cancel, Engine: engineOptions));
+            var options = new SpectrumFitOptions(Starts: setup.Starts, Seed: parse.GetValue(seed), SignSearch: !parse.GetValue(signsAsGiven),
+                Progress: progress, Cancel: io.Cancel, Engine: engineOptions);
+            if (setup.MaxIterations is { } most) options = options with { MaxIterationsPerStage = most };
+            var result = SpectrumFitter.Fit(problem, options);
             progress?.Finish();
             if (replicates > 0 && !result.Stopped)
             {
@@ -276,6 +278,8 @@ public static class FitCommand
         if (r.Setup is { } setup)
             o.WriteLine($"regions: {string.Join(" | ", setup.Traces.Select(t => string.Join("; ", t.Regions) + (t.RegionsAutomatic ? " (automatic)" : "")))}; " +
                         $"shifts kept within {setup.ShiftWindowPpm:0.###} ppm of their start unless bounded (shift_window_ppm widens it)");
+        foreach (var (t, d) in (r.Setup?.Traces ?? []).Select((t, d) => (t, d)))
+            if (t.PhaseSlopeNote is { } note) o.WriteLine((r.Setup!.Traces.Count > 1 ? $"trace {d + 1}: " : "") + note);
         var rows = FitTable.Rows(r);
         var labelWidth = Math.Max(24, rows.Max(x => x.Label.Length) + 2);
         var valueWidth = Math.Max(14, rows.Max(x => x.Value.Length));

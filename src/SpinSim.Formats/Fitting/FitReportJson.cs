@@ -142,6 +142,7 @@ public static class FitReportJson
             ["regions_automatic"] = t.RegionsAutomatic,
             ["exclude_ppm"] = Ranges(t.Exclude),
             ["processing"] = Strings(t.Processing),
+            ["phase_pivot_ppm"] = t.PhasePivotPpm,
         }).ToArray()),
         ["parameters"] = new JsonArray(s.Parameters.Select(p => (JsonNode)new JsonObject
         {
@@ -158,6 +159,7 @@ public static class FitReportJson
         ["ties"] = new JsonArray(s.Ties.Select(t => (JsonNode)Strings(t)).ToArray()),
         ["starts"] = s.Starts,
         ["seed"] = s.Seed,
+        ["max_iterations"] = s.MaxIterations,
         ["lineshape"] = s.Lineshape,
         ["shift_window_ppm"] = s.ShiftWindowPpm,
         ["symmetries"] = Strings(s.Symmetries),

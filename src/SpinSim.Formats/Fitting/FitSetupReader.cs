@@ -27,6 +27,7 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 /// first_order_phase = true            # also a first-order phase per trace, degrees per ppm about the regions' centre
 /// linewidth_per_nucleus = false
 /// starts = 8
+/// max_iterations = 300                # per stage of each start; a fit that reaches it has not converged (exit code 3)
 /// lineshape = "lorentzian"            # gaussian, voigt
 /// shift_window_ppm = 0.3              # shifts stay this close to their start unless bounded below
 /// hold_shifts_outside_regions = true  # false: vary shifts of nuclei with no line in the regions
@@ -40,7 +41,7 @@ public sealed record FitSettings(FitSetup Setup, Lineshape? Shape);
 public static class FitSetupReader
 {
     private static readonly string[] Keys =
-        ["regions_ppm", "exclude_ppm", "vary", "fix", "hold_sign", "tie", "baseline_order", "offset", "phase", "first_order_phase", "linewidth_per_nucleus", "starts", "lineshape",
+        ["regions_ppm", "exclude_ppm", "vary", "fix", "hold_sign", "tie", "baseline_order", "offset", "phase", "first_order_phase", "linewidth_per_nucleus", "starts", "max_iterations", "lineshape",
          "shift_window_ppm", "hold_shifts_outside_regions", "tie_symmetric", "linewidth_per_trace", "set_shift_ppm"];
 
     private static readonly string[] FidKeys = ["window", "window_hz", "points", "filter_delay_points", "phase_deg", "baseline_order"];
@@ -148,10 +149,7 @@ public static class FitSetupReader
                     nameLines.AddRange(ties.SelectMany(t => t).Select(n => (n, e.Line, false)));
                     break;
                 case "baseline_order":
-                    var order = Number(path, e);
-                    if (order is < 0 or > 3 || order != Math.Floor(order))
-                        throw new FitSetupException(path, e.Line, $"baseline_order is {order}", "Use 0 (constant), 1 (linear), 2 or 3");
-                    setup = setup with { BaselineOrder = (int)order };
+                    setup = setup with { BaselineOrder = WholeNumber(path, e, 0, 3, "Use 0 (constant), 1 (linear), 2 or 3") };
                     break;
                 case "offset": setup = setup with { FitOffset = Bool(path, e) }; break;
                 case "phase": setup = setup with { FitPhase = Bool(path, e) }; break;
@@ -167,10 +165,10 @@ public static class FitSetupReader
                     setup = setup with { ShiftWindowPpm = window };
                     break;
                 case "starts":
-                    var starts = Number(path, e);
-                    if (starts is < 1 or > 64 || starts != Math.Floor(starts))
-                        throw new FitSetupException(path, e.Line, $"starts is {starts}", "Use a whole number from 1 to 64");
-                    setup = setup with { Starts = (int)starts };
+                    setup = setup with { Starts = WholeNumber(path, e, 1, 64, "Use a whole number from 1 to 64") };
+                    break;
+                case "max_iterations":
+                    setup = setup with { MaxIterations = WholeNumber(path, e, 1, 100000, "Use a whole number from 1 to 100000 (default 300)") };
                     break;
                 case "lineshape":
                     shape = Lineshape.TryParse(e.Value as string, Lineshape.EqualComponents, out var named)
@@ -230,6 +228,14 @@ public static class FitSetupReader
 
     private static double Number(string path, FitEntry e) =>
         e.Value is double d ? d : throw new FitSetupException(path, e.Line, $"{e.Key} must be a number", $"Write {e.Key} = 1");
+
+    private static int WholeNumber(string path, FitEntry e, int lowest, int highest, string fix)
+    {
+        var value = Number(path, e);
+        return value >= lowest && value <= highest && value == Math.Floor(value)
+            ? (int)value
+            : throw new FitSetupException(path, e.Line, $"{e.Key} is {value}", fix);
+    }
 
     private static bool Bool(string path, FitEntry e) =>
         e.Value is bool b ? b : throw new FitSetupException(path, e.Line, $"{e.Key} must be true or false", $"Write {e.Key} = true");

@@ -136,6 +136,45 @@ public class FitCliTests
     }
 
     [Fact]
+    public void AFirstOrderPhaseIsAskedForByItsKeyAndItsPivotIsStatedInEveryReport()
+    {
+        var (data, start) = SyntheticAbx();
+        File.AppendAllText(start, "\n[fit]\nregions_ppm = [[4.3, 3.9], [2.9, 2.4]]\nfirst_order_phase = true\nstarts = 1\n");
+        var (report, html) = (Temp(".json"), Temp(".html"));
+        var (code, o, err) = CliTests.Run("fit", start, "--data", data, "-q", "--report", report, "--html", html);
+        Assert.True(code == 0, err + o);
+        // The pivot is the centre of the regions, (4.3 + 2.4) / 2.
+        Assert.Contains("phase_deg_per_ppm turns each line by that many degrees per ppm of its distance from 3.35 ppm", o);
+        Assert.Contains("phase slope/(°/ppm)", o);
+        using var json = JsonDocument.Parse(File.ReadAllText(report));
+        var setup = json.RootElement.GetProperty("setup");
+        Assert.Equal(3.35, setup.GetProperty("traces")[0].GetProperty("phase_pivot_ppm").GetDouble(), 9);
+        // Asking for the slope fits the zero-order phase too (a ramp needs its level).
+        foreach (var name in new[] { "phase_deg", "phase_deg_per_ppm" })
+            Assert.Contains(setup.GetProperty("parameters").EnumerateArray(), p => p.GetProperty("name").GetString() == name && p.GetProperty("varied").GetBoolean());
+        Assert.Contains(json.RootElement.GetProperty("parameters").EnumerateArray(), p => p.GetProperty("kind").GetString() == "phase_deg_per_ppm");
+        Assert.Contains("first-order phase", File.ReadAllText(html));
+        foreach (var f in new[] { data, start, report, html }) File.Delete(f);
+    }
+
+    [Fact]
+    public void AFitThatRunsOutOfIterationsExitsWithThreeAndStillWritesItsBestPoint()
+    {
+        var (data, start) = SyntheticAbx();
+        // One iteration per stage cannot take a start 10 Hz and 1.9 Hz off to the optimum.
+        File.AppendAllText(start, "\n[fit]\nstarts = 1\nmax_iterations = 1\n");
+        var (report, system) = (Temp(".json"), Temp(".toml"));
+        var (code, o, err) = CliTests.Run("fit", start, "--data", data, "-q", "--report", report, "--write-system", system);
+        Assert.True(code == 3, $"exit {code}: {err}{o}");
+        using var json = JsonDocument.Parse(File.ReadAllText(report));
+        Assert.False(json.RootElement.GetProperty("converged").GetBoolean());
+        Assert.True(json.RootElement.GetProperty("rms").GetDouble() <= json.RootElement.GetProperty("start_rms").GetDouble());
+        // The best point reached is written as a system file that simulate accepts, like a converged one.
+        Assert.Equal(0, CliTests.Run("simulate", system).Code);
+        foreach (var f in new[] { data, start, report, system }) File.Delete(f);
+    }
+
+    [Fact]
     public void ASetupThatVariesNothingGivesTheOverlayWithItsRms()
     {
         var (data, start) = SyntheticAbx();

@@ -39,6 +39,9 @@ public sealed record FitSetup
     public bool PerNucleusWidth { get; init; }
     public int Starts { get; init; } = 8;
 
+    /// <summary>Most iterations of the minimiser in each stage of each start (null: the fitter's default).</summary>
+    public int? MaxIterations { get; init; }
+
     /// <summary>
     /// Each shift without a bound of its own stays within this many ppm of its start: far enough for a misreferenced
     /// spectrum or a rough start, near enough that a nucleus cannot wander into another group's multiplet.

@@ -11,7 +11,16 @@ public sealed record TraceSetupRecord(
     IReadOnlyList<PpmRange> Regions,
     bool RegionsAutomatic,
     IReadOnlyList<PpmRange> Exclude,
-    IReadOnlyList<string> Processing);
+    IReadOnlyList<string> Processing)
+{
+    /// <summary>The pivot of the trace's first-order phase (the centre of its regions), in ppm; null when the fit has none.</summary>
+    public double? PhasePivotPpm { get; init; }
+
+    /// <summary>The plain-words statement of <see cref="PhasePivotPpm"/> for reports; null when the fit has no first-order phase.</summary>
+    public string? PhaseSlopeNote => PhasePivotPpm is { } pivot
+        ? string.Create(CultureInfo.InvariantCulture, $"phase_deg_per_ppm turns each line by that many degrees per ppm of its distance from {pivot:0.####} ppm (the centre of the fitted regions)")
+        : null;
+}
 
 /// <summary>One parameter as set up: start, bounds (given or default), whether it varied, why it was held, its tie.</summary>
 public sealed record ParameterSetupRecord(
@@ -38,6 +47,9 @@ public sealed record FitSetupRecord
     public required IReadOnlyList<IReadOnlyList<string>> Ties { get; init; }
     public required int Starts { get; init; }
     public required int Seed { get; init; }
+
+    /// <summary>Most minimiser iterations per stage of each start (<c>max_iterations</c>).</summary>
+    public int MaxIterations { get; init; }
     public required string Lineshape { get; init; }
     public required double ShiftWindowPpm { get; init; }
     public required IReadOnlyList<string> Symmetries { get; init; }
@@ -47,8 +59,11 @@ public sealed record FitSetupRecord
 
     internal static FitSetupRecord From(SpectrumFitProblem problem, ParameterLayout layout, SpectrumFitOptions options) => new()
     {
-        Traces = problem.Data.Select(d => new TraceSetupRecord(d.Trace.Origin.Source, d.Trace.Origin.Format, d.ObserveMHz, d.Regions,
-            d.RegionsAutomatic, d.Exclude, d.Trace.Origin.Processing?.Describe().ToArray() ?? d.Processing)).ToArray(),
+        Traces = problem.Data.Select((d, i) => new TraceSetupRecord(d.Trace.Origin.Source, d.Trace.Origin.Format, d.ObserveMHz, d.Regions,
+            d.RegionsAutomatic, d.Exclude, d.Trace.Origin.Processing?.Describe().ToArray() ?? d.Processing)
+        {
+            PhasePivotPpm = layout.Parameters.Any(p => p.Kind == ParameterKind.PhaseDegPerPpm && p.Dataset == i) ? d.CentrePpm : null,
+        }).ToArray(),
         Parameters = layout.Parameters.Select((p, i) =>
         {
             var f = layout.FreeIndexOf(i);
@@ -59,6 +74,7 @@ public sealed record FitSetupRecord
         Ties = problem.Ties,
         Starts = options.Starts,
         Seed = options.Seed,
+        MaxIterations = options.MaxIterationsPerStage,
         Lineshape = problem.Shape.ToString(),
         ShiftWindowPpm = problem.ShiftWindowPpm,
         Symmetries = problem.Symmetries.Select(s => string.Join(", ", s.Pairs.Select(p => $"{p.A} <-> {p.B}"))).ToArray(),
@@ -79,9 +95,10 @@ public sealed record FitSetupRecord
             rows.Add(($"{at}regions ({(t.RegionsAutomatic ? "automatic" : "given")})", string.Join("; ", t.Regions)));
             rows.Add(($"{at}excluded", t.Exclude.Count == 0 ? "none" : string.Join("; ", t.Exclude)));
             rows.Add(($"{at}processing", t.Processing.Count == 0 ? "none (the data were a spectrum)" : string.Join("; ", t.Processing)));
+            if (t.PhaseSlopeNote is { } note) rows.Add(($"{at}first-order phase", note));
         }
         rows.Add(("lineshape", Lineshape));
-        rows.Add(("starts", string.Create(inv, $"{Starts} (seed {Seed})")));
+        rows.Add(("starts", string.Create(inv, $"{Starts} (seed {Seed}); at most {MaxIterations} iterations per stage")));
         rows.Add(("shift window", string.Create(inv, $"start ± {ShiftWindowPpm:0.###} ppm unless bounded in [fit.bounds] (shift_window_ppm widens it)")));
         rows.Add(("ties", Ties.Count == 0 ? "none" : string.Join("; ", Ties.Select(t => string.Join(" = ", t)))));
         if (Symmetries.Count > 0)
