@@ -1,3 +1,4 @@
+using SpinSim.Core.Fitting.Spectral;
 using SpinSim.Core.Reporting;
 using SpinSim.Figures;
 using SpinSim.Figures.Plots;
