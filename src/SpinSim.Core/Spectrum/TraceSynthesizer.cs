@@ -1,3 +1,4 @@
+using System.Buffers;
 // Method: far fields as multipole expansions of the Cauchy kernel about grid nodes (L. Greengard and V. Rokhlin, J. Comput. Phys. 73, 325, 1987, here in one dimension), summed by FFT convolution.
 using System.Numerics;
 using SpinSim.Core.LinearAlgebra;
@@ -114,31 +115,35 @@ public static class TraceSynthesizer
             // Distances up to N/2 either way are represented: N/2 must exceed every node-to-point distance.
             var half = Math.Max(highest + 1, points - lowest);
             var n = (int)BitOperations.RoundUpToPowerOf2((ulong)(2 * half));
-            var spectrum = new Complex[n];
+            var spectrum = Scratch(n);
             var far = multipole.Count > 0 ? FarKernels(n, radius) : null;
             var jobs = new List<Action<Complex[]>>();
             foreach (var (profile, group) in smooth)
                 jobs.Add(sum => AddSmooth(all, group, profile, phase, axis, n, sum));
+            Complex[][]? deposits = null;
             if (far is not null)
             {
-                var deposits = FarDeposits(all, multipole, shape, phase, axis, n);
+                deposits = FarDeposits(all, multipole, shape, phase, axis, n);
                 for (var p = 0; p < deposits.Length; p++)
                 {
                     var pair = p;
                     jobs.Add(sum => AddFarPair(deposits[pair], pair, far, sum));
                 }
             }
-            // Each job into its own spectrum, summed in order.
-            var parts = new Complex[jobs.Count][];
-            Parallel.For(0, jobs.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, j =>
-            {
-                parts[j] = new Complex[n];
-                jobs[j](parts[j]);
-            });
-            foreach (var part in parts)
-                for (var k = 0; k < n; k++) spectrum[k] += part[k];
+            // Each worker sums its jobs into its own spectrum; the workers' spectra are added at the end.
+            var sumLock = new Lock();
+            Parallel.For(0, jobs.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, () => Scratch(n),
+                (j, _, part) => { jobs[j](part); return part; },
+                part =>
+                {
+                    lock (sumLock)
+                        for (var k = 0; k < n; k++) spectrum[k] += part[k];
+                    Release(part);
+                });
             Fft.Inverse(spectrum);
             for (var j = 0; j < points; j++) trace[j] = spectrum[j].Real / n;
+            Release(spectrum);
+            if (far is not null) foreach (var d in deposits!) Release(d);
         }
 
         var near = new List<(int Line, int Radius)>(multipole.Count + direct.Count);
@@ -254,7 +259,7 @@ public static class TraceSynthesizer
     private static Complex[][] FarDeposits(RenderLine[] lines, List<int> members, Lineshape shape, PhaseRotation phase, Axis axis, int n)
     {
         var deposits = new Complex[Terms / 2][];
-        for (var p = 0; p < deposits.Length; p++) deposits[p] = new Complex[n];
+        for (var p = 0; p < deposits.Length; p++) deposits[p] = Scratch(n);
         var c = new Complex(phase.Cos, phase.Sin) * Complex.ImaginaryOne / (Math.PI * axis.Step);
         Span<Complex> moments = stackalloc Complex[Terms];
         double lastWidth = double.NaN, half = 0, sigma = 0;
@@ -276,6 +281,25 @@ public static class TraceSynthesizer
         }
         return deposits;
     }
+
+    /// <summary>
+    /// A cleared complex array of exactly <paramref name="n"/> points (a power of two) from the shared pool. The
+    /// synthesiser needs a dozen arrays of twice the grid per trace; fresh ones cost more in page faults than the
+    /// transforms themselves on a small virtual machine, pooled ones are already in memory.
+    /// </summary>
+    private static Complex[] Scratch(int n)
+    {
+        var z = ArrayPool<Complex>.Shared.Rent(n);
+        if (z.Length != n)
+        {
+            ArrayPool<Complex>.Shared.Return(z);
+            return new Complex[n];
+        }
+        Array.Clear(z);
+        return z;
+    }
+
+    private static void Release(Complex[] z) => ArrayPool<Complex>.Shared.Return(z);
 
     /// <summary>Adds to <paramref name="sum"/> the far fields of terms K = 2 <paramref name="pair"/> and K + 1 from their packed deposits <paramref name="z"/> (transformed in place).</summary>
     private static void AddFarPair(Complex[] z, int pair, double[][] kernels, Complex[] sum)
@@ -307,7 +331,7 @@ public static class TraceSynthesizer
     private static void AddSmooth(RenderLine[] lines, List<int> members, LineProfile profile, PhaseRotation phase, Axis axis, int n, Complex[] sum)
     {
         // Deposits in the real part, the profile at every distance in the imaginary part: one transform for both.
-        var z = new Complex[n];
+        var z = Scratch(n);
         Span<double> weights = stackalloc double[LagrangeNodes];
         foreach (var l in members)
         {
@@ -334,6 +358,7 @@ public static class TraceSynthesizer
             var kernel = (z[k] - mirror) * new Complex(0, -0.5);
             sum[k] += deposits * kernel;
         }
+        Release(z);
     }
 
     /// <summary>Lagrange weights of the nodes -5 .. 6 for a point at <paramref name="t"/> in [0, 1).</summary>
