@@ -102,10 +102,14 @@ public static class SpectrumFitter
     /// given start, then the one whose couplings keep most of its signs. Shift distances are compared in steps of
     /// <see cref="RelabelStepPpm"/>: a relabelling moves shifts by their differences, an undecided sign by far less.
     /// </summary>
-    private static FitOptimum PreferUserLabels(ParameterLayout layout, IReadOnlyList<FitOptimum> atBest, double[] start) =>
-        atBest.OrderBy(o => Math.Round(ShiftDistance(layout, o.Free, start) / RelabelStepPpm))
-            .ThenBy(o => Enumerable.Range(0, layout.FreeCount).Count(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.JHz
-                && Math.Sign(o.Free[f]) != Math.Sign(start[f]))).First();
+    private static FitOptimum PreferUserLabels(ParameterLayout layout, IReadOnlyList<FitOptimum> atBest, double[] start)
+    {
+        var nearest = atBest.Min(o => ShiftDistance(layout, o.Free, start));
+        return atBest.Where(o => ShiftDistance(layout, o.Free, start) <= nearest + RelabelStepPpm)
+            .OrderBy(o => Enumerable.Range(0, layout.FreeCount).Count(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.JHz
+                && Math.Sign(o.Free[f]) != Math.Sign(start[f])))
+            .ThenBy(o => ShiftDistance(layout, o.Free, start)).First();
+    }
 
     /// <summary>
     /// One fit's fixed parts (prepared data, layout, bounds, continuation stages and their data) and the steps every
