@@ -130,16 +130,18 @@ public static class TraceSynthesizer
                     jobs.Add(sum => AddFarPair(deposits[pair], pair, far, sum));
                 }
             }
-            // Each worker sums its jobs into its own spectrum; the workers' spectra are added at the end.
-            var sumLock = new Lock();
-            Parallel.For(0, jobs.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, () => Scratch(n),
-                (j, _, part) => { jobs[j](part); return part; },
-                part =>
-                {
-                    lock (sumLock)
-                        for (var k = 0; k < n; k++) spectrum[k] += part[k];
-                    Release(part);
-                });
+            // Each job into its own (pooled) spectrum, summed in job order, so that the trace is the same on every run.
+            var parts = new Complex[jobs.Count][];
+            Parallel.For(0, jobs.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, j =>
+            {
+                parts[j] = Scratch(n);
+                jobs[j](parts[j]);
+            });
+            foreach (var part in parts)
+            {
+                for (var k = 0; k < n; k++) spectrum[k] += part[k];
+                Release(part);
+            }
             Fft.Inverse(spectrum);
             for (var j = 0; j < points; j++) trace[j] = spectrum[j].Real / n;
             Release(spectrum);
