@@ -138,7 +138,8 @@ public readonly struct LineProfile
     /// <summary>
     /// Adds <paramref name="scale"/> x <see cref="Phased"/> at the offsets <paramref name="firstOffsetHz"/> + j
     /// <paramref name="stepHz"/> to <paramref name="target"/>[j], for every j of the span: the drawing loop of a line's
-    /// near field, vectorised (System.Numerics.Vector) for the Lorentzian, whose value is a rational function.
+    /// near field, vectorised (System.Numerics.Vector) for the Lorentzian, whose value is a rational function, and for
+    /// pure Gaussian absorption (the vector exponential).
     /// </summary>
     public void AddPhased(Span<double> target, double firstOffsetHz, double stepHz, double scale, PhaseRotation phase)
     {
@@ -165,6 +166,30 @@ public readonly struct LineProfile
             {
                 var x = firstOffsetHz + j * stepHz;
                 target[j] += a * (b - x * sin) / (x * x + h2);
+            }
+            return;
+        }
+        if (_half == 0 && phase.Sin == 0)
+        {
+            // Pure Gaussian absorption: scale cos norm exp(-(x reduce)^2), with the vector exponential.
+            double a = scale * phase.Cos * _norm, r = _reduce;
+            var width = Vector<double>.Count;
+            if (Vector.IsHardwareAccelerated && target.Length >= width)
+            {
+                Span<double> ramp = stackalloc double[width];
+                for (var k = 0; k < width; k++) ramp[k] = k * stepHz;
+                var steps = new Vector<double>(ramp);
+                var (va, vr) = (new Vector<double>(a), new Vector<double>(r));
+                for (; j <= target.Length - width; j += width)
+                {
+                    var u = (new Vector<double>(firstOffsetHz + j * stepHz) + steps) * vr;
+                    (new Vector<double>(target.Slice(j, width)) + va * Vector.Exp(-(u * u))).CopyTo(target.Slice(j, width));
+                }
+            }
+            for (; j < target.Length; j++)
+            {
+                var u = (firstOffsetHz + j * stepHz) * r;
+                target[j] += a * Math.Exp(-u * u);
             }
             return;
         }
