@@ -247,10 +247,7 @@ internal sealed class SubspectrumSolver
     /// <summary>The largest block of H as <see cref="IDenseBackend.SymmetricEigen"/> receives it (for the dense-rate benchmarks).</summary>
     internal (int Size, double[] Matrix) LargestBlock()
     {
-        var blocks = Partition().Blocks;
-        var local = new int[_totalStates];
-        foreach (var codes in blocks)
-            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
+        var (blocks, local, _, _, _, _) = Plan();
         var largest = blocks.MaxBy(b => b.Length)!;
         return (largest.Length, BuildBlock(largest, local));
     }
@@ -263,27 +260,12 @@ internal sealed class SubspectrumSolver
     /// </summary>
     internal Action DenseFloor()
     {
-        var (blocks, keyOf, lowerKeyStep) = Partition();
-        var local = new int[_totalStates];
-        foreach (var codes in blocks)
-            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
-        var index = new Dictionary<long, int>();
-        for (var b = 0; b < blocks.Count; b++) index[keyOf[b]] = b;
-        var pairs = new List<(int Upper, int Lower)>();
-        var needed = new bool[blocks.Count];
-        for (var b = 0; b < blocks.Count; b++)
-            if (lowerKeyStep != 0 && index.TryGetValue(keyOf[b] - lowerKeyStep, out var lower)) { pairs.Add((b, lower)); needed[b] = needed[lower] = true; }
-        var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
-        var built = blocks.Select((codes, b) => needed[b] ? BuildBlock(codes, local) : []).ToArray();
+        var (blocks, local, pairs, order, pairOrder, threads) = Plan();
+        var built = blocks.Select((codes, b) => order.Contains(b) ? BuildBlock(codes, local) : []).ToArray();
         var work = built.Select(h => new double[h.Length]).ToArray();
         var eigenvalues = blocks.Select(codes => new double[codes.Length]).ToArray();
         var products = pairs.Select(p => (X: new double[(long)blocks[p.Lower].Length * blocks[p.Upper].Length], T: new double[(long)blocks[p.Lower].Length * blocks[p.Upper].Length])).ToArray();
-        var pairOrder = Enumerable.Range(0, pairs.Count)
-            .OrderByDescending(k => (double)blocks[pairs[k].Lower].Length * blocks[pairs[k].Lower].Length * blocks[pairs[k].Upper].Length).ToArray();
-        var parallel = new ParallelOptions
-        {
-            MaxDegreeOfParallelism = order.Length > 0 && blocks[order[0]].Length >= ParallelBlockSize ? Environment.ProcessorCount : 1,
-        };
+        var parallel = new ParallelOptions { MaxDegreeOfParallelism = threads };
         return () =>
         {
             Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b =>
@@ -314,37 +296,11 @@ internal sealed class SubspectrumSolver
     {
         if (generators is { Length: > 0 } && PoolWeakLines)
             throw new InvalidOperationException("line derivatives need weak-line pooling off: a pool has no derivatives");
-        var (blocks, keyOf, lowerKeyStep) = Partition();
-        var blockIndexOfKey = new Dictionary<long, int>();
-        for (var b = 0; b < blocks.Count; b++) blockIndexOfKey[keyOf[b]] = b;
-
-        var local = new int[_totalStates];
-        foreach (var codes in blocks)
-            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
-
+        var (blocks, local, pairs, order, pairOrder, threads) = Plan();
         // Eigen-decomposition of every block that takes part in an observed transition.
         var vectors = new double[blocks.Count][];
         var energies = new double[blocks.Count][];
-        var pairs = new List<(int Upper, int Lower)>();
-        var needed = new bool[blocks.Count];
-        for (var b = 0; b < blocks.Count; b++)
-            if (lowerKeyStep != 0 && blockIndexOfKey.TryGetValue(keyOf[b] - lowerKeyStep, out var lower))
-            {
-                pairs.Add((b, lower));
-                needed[b] = needed[lower] = true;
-            }
-
-        // Largest first, one block per take: the default partitioning of an array hands out ranges, which left one
-        // core idle while the other worked through the large blocks of a fully coupled cluster.
-        var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
-        // At most one dense solve per core: the thread pool adds threads when work items run long, and more
-        // concurrent solves than cores only lengthen the largest block's turn. Thread hand-offs cost more than small
-        // blocks, so below ParallelBlockSize one thread does all.
-        var parallel = new ParallelOptions
-        {
-            CancellationToken = cancel,
-            MaxDegreeOfParallelism = order.Length > 0 && blocks[order[0]].Length >= ParallelBlockSize ? Environment.ProcessorCount : 1,
-        };
+        var parallel = new ParallelOptions { CancellationToken = cancel, MaxDegreeOfParallelism = threads };
         Parallel.ForEach(Partitioner.Create(order, EnumerablePartitionerOptions.NoBuffering), parallel, b =>
         {
             var n = blocks[b].Length;
@@ -365,8 +321,6 @@ internal sealed class SubspectrumSolver
         });
 
         var results = new RawLines[pairs.Count];
-        var pairOrder = Enumerable.Range(0, pairs.Count)
-            .OrderByDescending(k => (double)blocks[pairs[k].Lower].Length * blocks[pairs[k].Lower].Length * blocks[pairs[k].Upper].Length).ToArray();
         Parallel.ForEach(Partitioner.Create(pairOrder, EnumerablePartitionerOptions.NoBuffering), parallel, k =>
         {
             var (u, l) = pairs[k];
@@ -378,6 +332,37 @@ internal sealed class SubspectrumSolver
             lock (pools) pools.MergeFrom(weak);
         });
         return results;
+    }
+
+    /// <summary>
+    /// How <see cref="Solve"/> (and <see cref="DenseFloor"/>) go through the blocks: each state's index in its block, the
+    /// observed block pairs (upper, lower), the blocks in them largest first, the pairs by their product's cost, and the
+    /// threads. Largest first, one block per take: the default partitioning of an array hands out ranges, which left one
+    /// core idle while the other worked through the large blocks of a fully coupled cluster. At most one dense solve per
+    /// core: the thread pool adds threads when work items run long, and more concurrent solves than cores only lengthen
+    /// the largest block's turn. Thread hand-offs cost more than small blocks, so below ParallelBlockSize one thread does all.
+    /// </summary>
+    private (List<int[]> Blocks, int[] Local, List<(int Upper, int Lower)> Pairs, int[] Order, int[] PairOrder, int Threads) Plan()
+    {
+        var (blocks, keyOf, lowerKeyStep) = Partition();
+        var blockIndexOfKey = new Dictionary<long, int>();
+        for (var b = 0; b < blocks.Count; b++) blockIndexOfKey[keyOf[b]] = b;
+        var local = new int[_totalStates];
+        foreach (var codes in blocks)
+            for (var i = 0; i < codes.Length; i++) local[codes[i]] = i;
+        var pairs = new List<(int Upper, int Lower)>();
+        var needed = new bool[blocks.Count];
+        for (var b = 0; b < blocks.Count; b++)
+            if (lowerKeyStep != 0 && blockIndexOfKey.TryGetValue(keyOf[b] - lowerKeyStep, out var lower))
+            {
+                pairs.Add((b, lower));
+                needed[b] = needed[lower] = true;
+            }
+        var order = Enumerable.Range(0, blocks.Count).Where(b => needed[b]).OrderByDescending(b => blocks[b].Length).ToArray();
+        var pairOrder = Enumerable.Range(0, pairs.Count)
+            .OrderByDescending(k => (double)blocks[pairs[k].Lower].Length * blocks[pairs[k].Lower].Length * blocks[pairs[k].Upper].Length).ToArray();
+        var threads = order.Length > 0 && blocks[order[0]].Length >= ParallelBlockSize ? Environment.ProcessorCount : 1;
+        return (blocks, local, pairs, order, pairOrder, threads);
     }
 
     private (List<int[]> Blocks, long[] KeyOf, long LowerKeyStep) Partition()
