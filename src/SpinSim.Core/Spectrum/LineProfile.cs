@@ -151,9 +151,7 @@ public readonly struct LineProfile
             var width = Vector<double>.Count;
             if (Vector.IsHardwareAccelerated && target.Length >= width)
             {
-                Span<double> ramp = stackalloc double[width];
-                for (var k = 0; k < width; k++) ramp[k] = k * stepHz;
-                var steps = new Vector<double>(ramp);
+                var steps = StepRamp(stepHz);
                 var (va, vb, vsin, vh2) = (new Vector<double>(a), new Vector<double>(b), new Vector<double>(sin), new Vector<double>(h2));
                 for (; j <= target.Length - width; j += width)
                 {
@@ -176,9 +174,7 @@ public readonly struct LineProfile
             var width = Vector<double>.Count;
             if (Vector.IsHardwareAccelerated && target.Length >= width)
             {
-                Span<double> ramp = stackalloc double[width];
-                for (var k = 0; k < width; k++) ramp[k] = k * stepHz;
-                var steps = new Vector<double>(ramp);
+                var steps = StepRamp(stepHz);
                 var (va, vr) = (new Vector<double>(a), new Vector<double>(r));
                 for (; j <= target.Length - width; j += width)
                 {
@@ -194,6 +190,14 @@ public readonly struct LineProfile
             return;
         }
         for (; j < target.Length; j++) target[j] += scale * Phased(firstOffsetHz + j * stepHz, phase);
+    }
+
+    /// <summary>0, step, 2 step, ... across one vector: the offsets of a vector's points from its first.</summary>
+    private static Vector<double> StepRamp(double stepHz)
+    {
+        Span<double> ramp = stackalloc double[Vector<double>.Count];
+        for (var k = 0; k < ramp.Length; k++) ramp[k] = k * stepHz;
+        return new Vector<double>(ramp);
     }
 
     /// <summary>

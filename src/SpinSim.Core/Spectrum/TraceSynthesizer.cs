@@ -145,7 +145,7 @@ public static class TraceSynthesizer
             Fft.Inverse(spectrum);
             for (var j = 0; j < points; j++) trace[j] = spectrum[j].Real / n;
             Release(spectrum);
-            if (far is not null) foreach (var d in deposits!) Release(d);
+            foreach (var d in deposits ?? []) Release(d);
         }
 
         var near = new List<(int Line, int Radius)>(multipole.Count + direct.Count);
@@ -287,13 +287,17 @@ public static class TraceSynthesizer
     /// <summary>
     /// A cleared complex array of exactly <paramref name="n"/> points (a power of two) from the shared pool. The
     /// synthesiser needs a dozen arrays of twice the grid per trace; fresh ones cost more in page faults than the
-    /// transforms themselves on a small virtual machine, pooled ones are already in memory.
+    /// transforms themselves on a small virtual machine, pooled ones are already in memory. The pool's sizes are powers
+    /// of two from <see cref="PooledFrom"/> up, so such an array comes back at exactly that length; smaller ones are
+    /// simply allocated (the pool would hand out a longer array and refuse a shorter one back).
     /// </summary>
     private static Complex[] Scratch(int n)
     {
+        if (n < PooledFrom) return new Complex[n];
         var z = ArrayPool<Complex>.Shared.Rent(n);
         if (z.Length != n)
         {
+            // Not the pool this was written against: the transforms need the exact length.
             ArrayPool<Complex>.Shared.Return(z);
             return new Complex[n];
         }
@@ -301,7 +305,12 @@ public static class TraceSynthesizer
         return z;
     }
 
-    private static void Release(Complex[] z) => ArrayPool<Complex>.Shared.Return(z);
+    private const int PooledFrom = 16;
+
+    private static void Release(Complex[] z)
+    {
+        if (z.Length >= PooledFrom) ArrayPool<Complex>.Shared.Return(z);
+    }
 
     /// <summary>Adds to <paramref name="sum"/> the far fields of terms K = 2 <paramref name="pair"/> and K + 1 from their packed deposits <paramref name="z"/> (transformed in place).</summary>
     private static void AddFarPair(Complex[] z, int pair, double[][] kernels, Complex[] sum)
