@@ -99,16 +99,18 @@ public static class SpectrumFitter
     /// Symmetric systems have equivalent optima with nuclei relabelled (A with B in AA'BB'), every system has its mirror
     /// with all couplings reversed, and some signs the spectrum does not decide (J(A,B) in the AB part of an ABX): keep
     /// the user's labels and signs by taking, among optima at the best cost, the one whose shifts moved least from the
-    /// given start, then the one whose couplings keep most of its signs. Shift distances are compared in steps of
-    /// <see cref="RelabelStepPpm"/>: a relabelling moves shifts by their differences, an undecided sign by far less.
+    /// given start, then the one whose couplings keep most of its signs. Shift distances within
+    /// <see cref="RelabelStepPpm"/> of the nearest count as equally near: a relabelling moves shifts by their
+    /// differences, an undecided sign by far less.
     /// </summary>
     private static FitOptimum PreferUserLabels(ParameterLayout layout, IReadOnlyList<FitOptimum> atBest, double[] start)
     {
-        var nearest = atBest.Min(o => ShiftDistance(layout, o.Free, start));
-        return atBest.Where(o => ShiftDistance(layout, o.Free, start) <= nearest + RelabelStepPpm)
-            .OrderBy(o => Enumerable.Range(0, layout.FreeCount).Count(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.JHz
-                && Math.Sign(o.Free[f]) != Math.Sign(start[f])))
-            .ThenBy(o => ShiftDistance(layout, o.Free, start)).First();
+        var distances = atBest.Select(o => (Optimum: o, Ppm: ShiftDistance(layout, o.Free, start))).ToList();
+        var nearest = distances.Min(t => t.Ppm);
+        return distances.Where(t => t.Ppm <= nearest + RelabelStepPpm)
+            .OrderBy(t => Enumerable.Range(0, layout.FreeCount).Count(f => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.JHz
+                && Math.Sign(t.Optimum.Free[f]) != Math.Sign(start[f])))
+            .ThenBy(t => t.Ppm).First().Optimum;
     }
 
     /// <summary>
