@@ -59,11 +59,7 @@ public class DsyevdRateBenchmarks
     public void Setup()
     {
         if (!DenseBackends.NativeAvailable) throw new InvalidOperationException("libopenblas.so.0 did not load: these rates would be the managed solver's");
-        var system = Systems.FullyCoupled(Spins);
-        var all = Enumerable.Range(0, system.Nuclei.Count).ToArray();
-        var combination = SpectrumEngine.Combinations(system, all, new double[all.Length]).Single();
-        var solver = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, system.Nuclei.Count, _backend);
-        (_n, _block) = solver.LargestBlock();
+        (_n, _block) = Systems.Solver(Systems.FullyCoupled(Spins), _backend).LargestBlock();
         _work = new double[_block.Length];
         _eigenvalues = new double[_n];
     }

@@ -75,6 +75,14 @@ public static class Systems
         return SpinSystem.Create(new FieldMHz(fieldMHz), nuclei, couplings);
     }
 
+    /// <summary>The one diagonalisation of a system with no equivalent sets, as the engine sets it up.</summary>
+    internal static SubspectrumSolver Solver(SpinSystem system, IDenseBackend backend)
+    {
+        var all = Enumerable.Range(0, system.Nuclei.Count).ToArray();
+        var combination = SpectrumEngine.Combinations(system, all, new double[all.Length]).Single();
+        return new SubspectrumSolver(combination.Particles, combination.CouplingsHz, system.Nuclei.Count, backend);
+    }
+
     /// <summary>Invented: tBu (9), two methyls (3 each), CH and CH2 (diastereotopic pair), at 400 MHz.</summary>
     public static SpinSystem MethylsAndTertButyl() => SpinSystem.Create(new FieldMHz(400),
         [new("tBu", 1.02, 9), new("MeA", 1.12, 3), new("MeB", 0.95, 3), new("CH", 1.85), new("Ha", 1.40), new("Hb", 1.31)],
@@ -102,9 +110,7 @@ public class EngineFloorBenchmarks
     {
         if (!DenseBackends.NativeAvailable) throw new InvalidOperationException("libopenblas.so.0 did not load: the floor would be the managed solver's");
         _system = Systems.FullyCoupled(Spins);
-        var all = Enumerable.Range(0, _system.Nuclei.Count).ToArray();
-        var combination = SpectrumEngine.Combinations(_system, all, new double[all.Length]).Single();
-        _floor = new SubspectrumSolver(combination.Particles, combination.CouplingsHz, _system.Nuclei.Count, DenseBackends.Default).DenseFloor();
+        _floor = Systems.Solver(_system, DenseBackends.Default).DenseFloor();
     }
 
     [Benchmark(Baseline = true)]
