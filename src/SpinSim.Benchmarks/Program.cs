@@ -8,6 +8,7 @@ using SpinSim.Core.LinearAlgebra;
 //   synth SHAPE WIDTHS R the synthesis benchmark's 100,000 lines, R times (SHAPE Lorentzian|Gaussian|Voigt, WIDTHS one|each)
 //   fid R                the FID benchmark's FID processed with the defaults, R times
 //   fft N                20 forward transforms of N points, managed (MathNet) and native (FFTW, when it loads)
+//   fit CASE STARTS SIGNS R  the fit benchmark (CASE aabb|abx|eight-spins, SIGNS search|given), R times
 // Anything else goes to BenchmarkDotNet.
 static int Count(string s) => int.Parse(s, CultureInfo.InvariantCulture);
 
@@ -46,6 +47,11 @@ switch (args)
         var z = new System.Numerics.Complex[Count(size)];
         Repeat("managed", 20, () => Fft.Managed(z, -1));
         if (Fft.NativeAvailable) Repeat("native", 20, () => Fft.Native(z, -1));
+        return 0;
+    case ["fit", var fitCase, var starts, var signs, var times]:
+        var fit = new FitBenchmarks { Case = fitCase, Starts = Count(starts), SignSearch = signs == "search" };
+        fit.Setup();
+        Repeat($"fit, {fitCase}, {starts} starts, signs {signs}", Count(times), () => fit.Fit());
         return 0;
     default:
         BenchmarkDotNet.Running.BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);

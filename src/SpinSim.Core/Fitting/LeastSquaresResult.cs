@@ -52,6 +52,9 @@ public sealed record LeastSquaresResult
     /// <summary>n - p, residuals less parameters (all of them, bound or not).</summary>
     public required int DegreesOfFreedom { get; init; }
 
+    /// <summary>n, the residuals the sum of squares ran over.</summary>
+    public int Points => DegreesOfFreedom + Parameters.Length;
+
     /// <summary>s^2 = RSS / (n - p); NaN when n &lt;= p.</summary>
     public required double ResidualVariance { get; init; }
 

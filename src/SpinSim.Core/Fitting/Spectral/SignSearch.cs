@@ -44,6 +44,10 @@ internal static class SignSearch
         var freeOfCoupling = FreeOfCoupling(layout, start.Couplings.Count);
         var searchable = SearchableCouplings(layout, freeOfCoupling, bounds);
         var groups = CouplingSigns.Groups(fitted, searchable);
+        // The second solutions of the best point go into the first batch of refits with the patterns, so that both cores
+        // stay busy; when a pattern improves on the best, those of the improved point are refitted at the end.
+        var second = SecondSolutions(start, layout, fitted, current, bounds).ToList();
+        var secondTried = second.Count;
         foreach (var group in groups)
         {
             if (cancel.IsCancellationRequested) break;
@@ -58,8 +62,10 @@ internal static class SignSearch
                 var flips = CouplingSigns.Patterns(new SignGroup(free)).Select(p => p.Where(f => f >= 0).ToArray()).Where(p => p.Length > 0).ToList();
                 patterns += flips.Count;
                 var held = free.Where(f => f >= 0).ToArray();
-                var reached = refit(flips.Select(p => HoldingSigns(Flip(current.Free, p, bounds), held, bounds,
-                    "signs reversed: " + string.Join(", ", p.Select(f => Name(layout, f))))).ToList());
+                var batch = flips.Select(p => HoldingSigns(Flip(current.Free, p, bounds), held, bounds,
+                    "signs reversed: " + string.Join(", ", p.Select(f => Name(layout, f))))).Concat(second).ToList();
+                second = [];
+                var reached = refit(batch);
                 optima.AddRange(reached);
                 var improved = reached.Where(o => o.Cost < current.Cost * (1 - 1e-9)).MinBy(o => o.Cost);
                 if (improved is null) break;
@@ -67,9 +73,13 @@ internal static class SignSearch
             }
         }
 
-        var second = SecondSolutions(start, layout, fitted, current, bounds).ToList();
+        if (!ReferenceEquals(current, best))
+        {
+            second = SecondSolutions(start, layout, layout.ApplySpin(start, layout.Expand(current.Free)), current, bounds).ToList();
+            secondTried += second.Count;
+        }
         if (second.Count > 0 && !cancel.IsCancellationRequested) optima.AddRange(refit(second));
-        return new Outcome(optima, patterns, second.Count, groups);
+        return new Outcome(optima, patterns, secondTried, groups);
     }
 
     private static bool Touches(SpinSystem system, SignGroup group, Coupling c) =>

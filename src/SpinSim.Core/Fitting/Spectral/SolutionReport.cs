@@ -24,8 +24,11 @@ public sealed record SolutionSearch(int StartsTried, int SignPatternsTried, int 
 /// <summary>Turns the optima of a fit and its sign search into the <see cref="SolutionSearch"/> report.</summary>
 internal static class SolutionReport
 {
-    /// <summary>Optima within this factor of the critical ratio (at the thinned last stage) are polished and tested on all points.</summary>
-    private const double PolishMargin = 1.5;
+    /// <summary>
+    /// Optima whose misfit ratio at the thinned last stage exceeds 1 by at most this many times the critical excess of
+    /// a test on that stage's points are polished and compared on all points; the rest are clearly worse.
+    /// </summary>
+    private const double PolishMargin = 3;
 
     public static SpectrumFitResult Attach(SpectrumFitResult result, SpectrumFitProblem problem, ParameterLayout layout,
         FitOptimum best, LeastSquaresResult polished, IReadOnlyList<FitOptimum> optima, SignSearch.Outcome search,
@@ -38,16 +41,38 @@ internal static class SolutionReport
         var p = layout.FreeCount;
         var critical = MisfitComparison.CriticalRatio(effective, p);
 
-        var fittedSystem = layout.ApplySpin(problem.System, layout.Expand(polished.Parameters));
+        // The optima's misfits are those of the last, thinned stage: a ratio there is noisier than on all points (fewer
+        // of them), so an optimum near the best is polished on all points and compared there, and one clearly worse
+        // keeps its thinned ratio.
+        var thinnedCritical = MisfitComparison.CriticalRatio(Math.Min(effective, best.Result.Points), p);
         var freeOfCoupling = SignSearch.FreeOfCoupling(layout, problem.System.Couplings.Count);
-        var groups = search.Groups;
-        var varied = Enumerable.Range(0, freeOfCoupling.Length).Where(c => freeOfCoupling[c] >= 0).ToHashSet();
         int[] Signs(double[] free) => freeOfCoupling.Select((f, c) =>
             Math.Sign(f >= 0 ? free[f] : problem.System.Couplings[c].J.Value)).ToArray();
-        var signOptima = optima.Select(o => new SignOptimum(Signs(o.Free), o.Cost)).Append(new SignOptimum(Signs(best.Free), best.Cost)).ToArray();
+        var bestFull = layout.Expand(polished.Parameters);
+        var compared = new List<Compared>();
+        foreach (var o in optima.OrderBy(o => o.Cost))
+        {
+            var thinnedRatio = o.Cost / Math.Max(best.Cost, double.Epsilon);
+            var signs = Signs(o.Free);
+            if (thinnedRatio > 1 + PolishMargin * (thinnedCritical - 1) || ReferenceEquals(o, best) || distanceHz(o.Free, best.Free) <= sameToleranceHz)
+            {
+                compared.Add(new Compared(o, signs, thinnedRatio, null));
+                continue;
+            }
+            // The same optimum reached twice (the same signs, values within the relabelling tolerances) is polished once.
+            var twin = compared.FirstOrDefault(c => c.Polished is not null && c.Signs.SequenceEqual(signs)
+                && SameUpToSignsAndLabels(layout, layout.Expand(c.Optimum.Free), layout.Expand(o.Free)));
+            var refined = twin?.Polished ?? polish(o.Free);
+            compared.Add(new Compared(o, signs, refined.ResidualSumOfSquares / Math.Max(polished.ResidualSumOfSquares, double.Epsilon), refined));
+        }
+
+        var fittedSystem = layout.ApplySpin(problem.System, bestFull);
+        var groups = search.Groups;
+        var varied = Enumerable.Range(0, freeOfCoupling.Length).Where(c => freeOfCoupling[c] >= 0).ToHashSet();
+        var signOptima = compared.Select(c => new SignOptimum(c.Signs, c.Ratio)).Append(new SignOptimum(Signs(polished.Parameters), 1)).ToArray();
         var verdicts = CouplingSigns.Judge(fittedSystem, varied, groups, signOptima, effective, p);
         string CouplingName(int c) => layout.Parameters.First(q => q.Kind == ParameterKind.JHz && q.Index == c).Name;
-        var signs = verdicts.Select(v => new CouplingSignReport(CouplingName(v.Coupling), v.Determined, v.RelativeTo.Select(CouplingName).ToArray(),
+        var signReports = verdicts.Select(v => new CouplingSignReport(CouplingName(v.Coupling), v.Determined, v.RelativeTo.Select(CouplingName).ToArray(),
             v.MisfitRatio, v.Probability, v.Reason)).ToArray();
 
         // Distinct optima: one representative per cluster of optima closer than the joining tolerance.
@@ -56,17 +81,12 @@ internal static class SolutionReport
             if (distinct.All(d => distanceHz(d.Free, o.Free) > sameToleranceHz)) distinct.Add(o);
 
         var alternatives = new List<(double[] Full, AlternativeSolution Solution)>();
-        var bestFull = layout.Expand(polished.Parameters);
-        foreach (var o in distinct.Skip(1))
+        foreach (var c in compared)
         {
-            if (o.Cost / Math.Max(best.Cost, double.Epsilon) > PolishMargin * critical) continue;
-            if (SameUpToSignsAndLabels(layout, bestFull, layout.Expand(o.Free))) continue;
-            if (alternatives.Any(a => SameUpToSignsAndLabels(layout, a.Full, layout.Expand(o.Free)))) continue;
-            var refined = polish(o.Free);
-            var ratio = refined.ResidualSumOfSquares / Math.Max(polished.ResidualSumOfSquares, double.Epsilon);
-            if (ratio > critical) continue;
-            if (distanceHz(refined.Parameters, polished.Parameters) <= sameToleranceHz) continue;
+            if (c.Polished is not { } refined || !distinct.Contains(c.Optimum) || c.Ratio > critical) continue;
             var full = layout.Expand(refined.Parameters);
+            if (distanceHz(refined.Parameters, polished.Parameters) <= sameToleranceHz) continue;
+            if (SameUpToSignsAndLabels(layout, bestFull, full) || alternatives.Any(a => SameUpToSignsAndLabels(layout, a.Full, full))) continue;
             var differences = Enumerable.Range(0, layout.Parameters.Count)
                 .Where(i => layout.Parameters[i].Kind is ParameterKind.ShiftPpm or ParameterKind.JHz && layout.FreeIndexOf(i) >= 0)
                 // A coupling that differs only in sign is the sign report's business, not another solution's.
@@ -74,7 +94,8 @@ internal static class SolutionReport
                     > SignificantDifference(layout, i, polished))
                 .Select(i => new ParameterDifference(layout.Parameters[i].Name, layout.Parameters[i].Unit, bestFull[i], full[i])).ToArray();
             if (differences.Length == 0) continue;
-            alternatives.Add((full, new AlternativeSolution(Math.Max(1, ratio), MisfitComparison.Probability(Math.Max(1, ratio), effective, p), o.Origin, differences)));
+            var ratio = Math.Max(1, c.Ratio);
+            alternatives.Add((full, new AlternativeSolution(ratio, MisfitComparison.Probability(ratio, effective, p), c.Optimum.Origin, differences)));
         }
 
         var warnings = result.Warnings.ToList();
@@ -83,11 +104,14 @@ internal static class SolutionReport
                          $"{effective:0} effective points): the values below are one of them; see the alternative solutions");
         return result with
         {
-            Solutions = new SolutionSearch(result.Starts, search.Patterns, search.SecondSolutions, distinct.Count, effective, signs,
+            Solutions = new SolutionSearch(result.Starts, search.Patterns, search.SecondSolutions, distinct.Count, effective, signReports,
                 alternatives.Select(a => a.Solution).ToArray()),
             Warnings = warnings,
         };
     }
+
+    /// <summary>An optimum, the signs of its couplings, its misfit over the best's (on all points when polished), and its polished point.</summary>
+    private sealed record Compared(FitOptimum Optimum, int[] Signs, double Ratio, LeastSquaresResult? Polished);
 
     /// <summary>Three standard errors, and never less than a thousandth of a Hz (or its ppm).</summary>
     private static double SignificantDifference(ParameterLayout layout, int parameter, LeastSquaresResult polished)

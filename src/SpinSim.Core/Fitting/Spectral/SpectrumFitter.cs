@@ -209,7 +209,7 @@ public static class SpectrumFitter
 
         /// <summary>Polishes <paramref name="free"/> on all points (no broadening, every point), within the fit's bounds.</summary>
         public LeastSquaresResult Polish(double[] free) =>
-            RunStage(Problem, Layout, Prepared, Engine, new Stage(0, 1, false), free, Lower, Upper, Options, -1, _stages.Count, _stages.Count + 1);
+            RunStage(Problem, Layout, Prepared, Engine, new Stage(0, 1, false, Polish: true), free, Lower, Upper, Options, -1, _stages.Count, _stages.Count + 1);
 
         /// <summary>
         /// A start point made ready for <see cref="RunStarts"/>: shifts aligned on the data's centroids (with
@@ -363,11 +363,12 @@ public static class SpectrumFitter
             .Sum(f => Math.Abs(a[f] - b[f]));
 
     /// <summary>
-    /// One continuation stage: added Lorentzian broadening, point stride, and whether couplings are held. While broadened,
+    /// One continuation stage: added Lorentzian broadening, point stride, whether couplings are held, and whether it is the
+    /// polish (all points, converged fully). While broadened,
     /// the linewidth is held and the scale kept within a factor of two of its start: with lines that miss the data the
     /// cheapest fit is otherwise a zero scale, from which no gradient leads back.
     /// </summary>
-    private sealed record Stage(double BroadeningHz, int Stride, bool HoldCouplings);
+    private sealed record Stage(double BroadeningHz, int Stride, bool HoldCouplings, bool Polish = false);
 
     private static LeastSquaresResult RunStage(SpectrumFitProblem problem, ParameterLayout layout, PreparedData[] data, EngineOptions engine,
         Stage stage, double[] x, double[] lower, double[] upper, SpectrumFitOptions options, int start, int index, int count)
@@ -391,10 +392,13 @@ public static class SpectrumFitter
             UpperBounds = hi,
             MaxIterations = options.MaxIterationsPerStage,
             // A broadened stage only has to bring the next one into its basin: a relative change of the cost below
-            // 1e-6 there changes nothing that the narrower stages see. The last stage and the polish converge fully.
+            // 1e-6 there changes nothing that the narrower stages see. The last, thinned stage ranks the optima, which
+            // count as the same within 1e-4 (SameOptimumTolerance), and hands the best to the polish; it stops once a
+            // step gains less than 1e-6 of the cost (a bad optimum otherwise crawls there for dozens of steps). The
+            // polish converges fully.
             GradientTolerance = stage.BroadeningHz > 0 ? 1e-8 : 1e-10,
             StepTolerance = stage.BroadeningHz > 0 ? 1e-6 : 1e-10,
-            FunctionTolerance = stage.BroadeningHz > 0 ? 1e-6 : 1e-12,
+            FunctionTolerance = stage.Polish ? 1e-12 : 1e-6,
             Progress = progress,
             Cancellation = options.Cancel,
         });
