@@ -49,7 +49,9 @@ switch (args)
         if (Fft.NativeAvailable) Repeat("native", 20, () => Fft.Native(z, -1));
         return 0;
     case ["fit", var fitCase, var starts, var signs, var times]:
-        var fit = new FitBenchmarks { Case = fitCase, Starts = Count(starts), SignSearch = signs == "search" };
+        FitBenchmarkBase fit = fitCase == "eight-spins"
+            ? new LargeFitBenchmarks { Starts = Count(starts), SignSearch = signs == "search" }
+            : new FitBenchmarks { Case = fitCase, Starts = Count(starts), SignSearch = signs == "search" };
         fit.Setup();
         Repeat($"fit, {fitCase}, {starts} starts, signs {signs}", Count(times), () => fit.Fit());
         return 0;

@@ -32,23 +32,22 @@ internal sealed class ScaledJacobianSvd
         if (k == 0 || m == 0)
             return new ScaledJacobianSvd { Free = free, Scale = freeScale, S = [], V = new double[k, 0], C = [] };
 
-        var a = Matrix<double>.Build.Dense(m, k, (i, c) => jacobian[i, free[c]] / freeScale[c]);
-        var r = Vector<double>.Build.Dense(residuals.ToArray());
         Matrix<double> u, vt;
         Vector<double> s, ur;
         if (m >= k)
         {
-            // A thin QR first, so the SVD is of a k x k triangle and never forms an m x m U.
-            var qr = a.QR(MathNet.Numerics.LinearAlgebra.Factorization.QRMethod.Thin);
-            var svd = qr.R.Svd(true);
+            // Householder triangularisation first, so the SVD is of a k x k triangle and no m x m (or m x k) Q is formed.
+            var (triangle, qtr) = Triangularise(jacobian, residuals, free, freeScale);
+            var svd = Matrix<double>.Build.DenseOfColumnMajor(k, k, triangle).Svd(true);
             (u, s, vt) = (svd.U, svd.S, svd.VT);
-            ur = u.TransposeThisAndMultiply(qr.Q.TransposeThisAndMultiply(r));
+            ur = u.TransposeThisAndMultiply(Vector<double>.Build.Dense(qtr));
         }
         else
         {
+            var a = Matrix<double>.Build.Dense(m, k, (i, c) => jacobian[i, free[c]] / freeScale[c]);
             var svd = a.Svd(true);
             (u, s, vt) = (svd.U, svd.S, svd.VT);
-            ur = u.TransposeThisAndMultiply(r);
+            ur = u.TransposeThisAndMultiply(Vector<double>.Build.Dense(residuals.ToArray()));
         }
 
         // With fewer residuals than free parameters the missing singular values are zero; keeping all k right
@@ -60,6 +59,68 @@ internal sealed class ScaledJacobianSvd
         var cPadded = new double[k];
         for (int c = 0; c < Math.Min(k, s.Count); c++) { sPadded[c] = s[c]; cPadded[c] = ur[c]; }
         return new ScaledJacobianSvd { Free = free, Scale = freeScale, S = sPadded, V = v, C = cPadded };
+    }
+
+    /// <summary>
+    /// R (k x k, column-major, upper triangle) and the first k entries of Q^T r for A = J[:, free] diag(1/scale) = Q R
+    /// (m &gt;= k), by Householder reflections applied to A and r as they are made (Golub and Van Loan, Matrix
+    /// Computations, 4th ed., algorithm 5.2.1); Q itself is never formed.
+    /// </summary>
+    internal static (double[] R, double[] QtR) Triangularise(double[,] jacobian, ReadOnlySpan<double> residuals, int[] free, double[] freeScale)
+    {
+        int m = jacobian.GetLength(0), k = free.Length;
+        // A column-major copy: each reflection works down whole columns.
+        var a = new double[m * k];
+        for (int c = 0; c < k; c++)
+        {
+            var column = a.AsSpan(c * m, m);
+            double inverse = 1 / freeScale[c];
+            int j = free[c];
+            for (int i = 0; i < m; i++) column[i] = jacobian[i, j] * inverse;
+        }
+        var r = residuals.ToArray();
+        for (int c = 0; c < k; c++)
+        {
+            var x = a.AsSpan(c * m + c, m - c);
+            double norm = Norm(x);
+            if (norm == 0) continue;
+            // v = x + sign(x0) |x| e1, H = I - 2 v v^T / (v^T v); H x = -sign(x0) |x| e1.
+            double alpha = x[0] >= 0 ? -norm : norm;
+            x[0] -= alpha;
+            double vv = Dot(x, x);
+            for (int d = c + 1; d < k; d++) Reflect(x, a.AsSpan(d * m + c, m - c), vv);
+            Reflect(x, r.AsSpan(c, m - c), vv);
+            x[0] = alpha;
+            x[1..].Clear();
+        }
+        var triangle = new double[k * k];
+        for (int c = 0; c < k; c++)
+            for (int i = 0; i <= c; i++) triangle[c * k + i] = a[c * m + i];
+        return (triangle, r[..k]);
+    }
+
+    private static void Reflect(ReadOnlySpan<double> v, Span<double> y, double vv)
+    {
+        double f = 2 * Dot(v, y) / vv;
+        for (int i = 0; i < y.Length; i++) y[i] -= f * v[i];
+    }
+
+    private static double Dot(ReadOnlySpan<double> x, ReadOnlySpan<double> y)
+    {
+        double sum = 0;
+        for (int i = 0; i < x.Length; i++) sum += x[i] * y[i];
+        return sum;
+    }
+
+    /// <summary>Euclidean norm, scaled against overflow and underflow.</summary>
+    private static double Norm(ReadOnlySpan<double> x)
+    {
+        double largest = 0;
+        foreach (var v in x) largest = Math.Max(largest, Math.Abs(v));
+        if (largest == 0) return 0;
+        double sum = 0;
+        foreach (var v in x) { var t = v / largest; sum += t * t; }
+        return largest * Math.Sqrt(sum);
     }
 
     public double LargestSingularValue => S.Length == 0 ? 0 : S[0];
