@@ -2,8 +2,12 @@ using SpinSim.Core.Model;
 
 namespace SpinSim.Core.Fitting.Spectral;
 
-/// <summary>A start for the fitter's stages, where it came from, and bounds of its own when it has them.</summary>
-internal sealed record FitStart(double[] Free, string Origin, double[]? Lower = null, double[]? Upper = null);
+/// <summary>
+/// A start for the fitter's stages, where it came from, and bounds of its own when it has them. A
+/// <paramref name="Comparison"/> refit (a sign pattern, a second solution) only has to tell how its optimum compares with
+/// the best: its last thinned stage stops at a gain of 1e-5 per step, where a start stops at 1e-6.
+/// </summary>
+internal sealed record FitStart(double[] Free, string Origin, double[]? Lower = null, double[]? Upper = null, bool Comparison = false);
 
 /// <summary>An optimum reached by the fitter from one start, and where that start came from.</summary>
 internal sealed record FitOptimum(double[] Free, LeastSquaresResult Result, string Origin)
@@ -109,7 +113,7 @@ internal static class SignSearch
             else upper[f] = Math.Min(upper[f], -HeldSignFloorHz);
             x[f] = Math.Clamp(x[f], lower[f], upper[f]);
         }
-        return new FitStart(x, origin, lower, upper);
+        return new FitStart(x, origin, lower, upper, Comparison: true);
     }
 
     private static double[] Flip(double[] free, IReadOnlyList<int> indices, (double[] Lower, double[] Upper) bounds)
@@ -122,8 +126,9 @@ internal static class SignSearch
     private static string Name(ParameterLayout layout, int free) => layout.Parameters[layout.FreeRepresentatives[free]].Name;
 
     /// <summary>
-    /// Starts at the ABX second solution of every strongly coupled pair (A, B) and common partner X whose two shifts and
-    /// two X couplings are free values of their own (a tie would make the exchange change other nuclei too).
+    /// Starts at the ABX second solution of every strongly coupled pair (A, B) and common partner X, more weakly coupled
+    /// to each of them than they are to each other, whose two shifts and two X couplings are free values of their own (a
+    /// tie would make the exchange change other nuclei too).
     /// </summary>
     private static IEnumerable<FitStart> SecondSolutions(SpinSystem start, ParameterLayout layout, SpinSystem fitted,
         FitOptimum best, (double[] Lower, double[] Upper) bounds)
@@ -140,10 +145,14 @@ internal static class SignSearch
             for (var b = a + 1; b < n; b++)
             {
                 if (j[a, b] == 0 || fitted.Nuclei[a].Isotope != fitted.Nuclei[b].Isotope || fitted.Nuclei[a].Count != 1 || fitted.Nuclei[b].Count != 1) continue;
-                if (Engine.ClusterPartition.Ratio(fitted, j, a, b) <= 0.05 || !Alone(shiftFree[a]) || !Alone(shiftFree[b])) continue;
+                var ab = Engine.ClusterPartition.Ratio(fitted, j, a, b);
+                if (ab <= 0.05 || !Alone(shiftFree[a]) || !Alone(shiftFree[b])) continue;
                 for (var x = 0; x < n; x++)
                 {
                     if (x == a || x == b || j[a, x] == 0 || j[b, x] == 0) continue;
+                    // X is the distant partner of an ABX (the closed form holds to first order in J/dnu_AX): more weakly
+                    // coupled to A and to B than they are to each other. Otherwise the triple is an ABX with other labels.
+                    if (Engine.ClusterPartition.Ratio(fitted, j, a, x) >= ab || Engine.ClusterPartition.Ratio(fitted, j, b, x) >= ab) continue;
                     var (ax, bx) = (CouplingIndex(fitted, a, x), CouplingIndex(fitted, b, x));
                     if (!Alone(couplingFree[ax]) || !Alone(couplingFree[bx])) continue;
                     var other = AbxAlternative.SecondSolution(fitted, fitted.Nuclei[a].Id, fitted.Nuclei[b].Id, fitted.Nuclei[x].Id);
@@ -154,7 +163,7 @@ internal static class SignSearch
                     free[couplingFree[ax]] = other.Couplings[ax].J.Value;
                     free[couplingFree[bx]] = other.Couplings[bx].J.Value;
                     for (var f = 0; f < free.Length; f++) free[f] = Math.Clamp(free[f], bounds.Lower[f], bounds.Upper[f]);
-                    yield return new FitStart(free, $"ABX second solution of {fitted.Nuclei[a].Id}, {fitted.Nuclei[b].Id} with {fitted.Nuclei[x].Id}");
+                    yield return new FitStart(free, $"ABX second solution of {fitted.Nuclei[a].Id}, {fitted.Nuclei[b].Id} with {fitted.Nuclei[x].Id}", Comparison: true);
                 }
             }
     }

@@ -49,12 +49,17 @@ internal static class SolutionReport
         int[] Signs(double[] free) => freeOfCoupling.Select((f, c) =>
             Math.Sign(f >= 0 ? free[f] : problem.System.Couplings[c].J.Value)).ToArray();
         var bestFull = layout.Expand(polished.Parameters);
+        var bestSigns = Signs(polished.Parameters);
         var compared = new List<Compared>();
         foreach (var o in optima.OrderBy(o => o.Cost))
         {
             var thinnedRatio = o.Cost / Math.Max(best.Cost, double.Epsilon);
             var signs = Signs(o.Free);
-            if (thinnedRatio > 1 + PolishMargin * (thinnedCritical - 1) || ReferenceEquals(o, best) || distanceHz(o.Free, best.Free) <= sameToleranceHz)
+            // The best itself, reached again, relabelled (A with B in AA'BB') or mirrored (every sign reversed) gives the
+            // same spectrum: polishing it would only give the best's misfit again.
+            var again = ReferenceEquals(o, best) || distanceHz(o.Free, best.Free) <= sameToleranceHz
+                || (SameUpToSignsAndLabels(layout, bestFull, layout.Expand(o.Free)) && (signs.SequenceEqual(bestSigns) || signs.SequenceEqual(bestSigns.Select(v => -v))));
+            if (thinnedRatio > 1 + PolishMargin * (thinnedCritical - 1) || again)
             {
                 compared.Add(new Compared(o, signs, thinnedRatio, null));
                 continue;
@@ -69,7 +74,7 @@ internal static class SolutionReport
         var fittedSystem = layout.ApplySpin(problem.System, bestFull);
         var groups = search.Groups;
         var varied = Enumerable.Range(0, freeOfCoupling.Length).Where(c => freeOfCoupling[c] >= 0).ToHashSet();
-        var signOptima = compared.Select(c => new SignOptimum(c.Signs, c.Ratio)).Append(new SignOptimum(Signs(polished.Parameters), 1)).ToArray();
+        var signOptima = compared.Select(c => new SignOptimum(c.Signs, c.Ratio)).Append(new SignOptimum(bestSigns, 1)).ToArray();
         var verdicts = CouplingSigns.Judge(fittedSystem, varied, groups, signOptima, effective, p);
         string CouplingName(int c) => layout.Parameters.First(q => q.Kind == ParameterKind.JHz && q.Index == c).Name;
         var signReports = verdicts.Select(v => new CouplingSignReport(CouplingName(v.Coupling), v.Determined, v.RelativeTo.Select(CouplingName).ToArray(),

@@ -179,7 +179,7 @@ public static class SpectrumFitter
                 Parallel.ForEach(running, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
                 {
                     last[s] = RunStage(Problem, Layout, _stageData[k], Engine, stage, current[s], starts[s].Lower ?? Lower, starts[s].Upper ?? Upper,
-                        Options, s, k, _stages.Count);
+                        Options, s, k, _stages.Count, starts[s].Comparison);
                     current[s] = last[s]!.Parameters;
                 });
                 if (stage.BroadeningHz <= 0 || !Options.JoinStarts) continue;
@@ -371,7 +371,7 @@ public static class SpectrumFitter
     private sealed record Stage(double BroadeningHz, int Stride, bool HoldCouplings, bool Polish = false);
 
     private static LeastSquaresResult RunStage(SpectrumFitProblem problem, ParameterLayout layout, PreparedData[] data, EngineOptions engine,
-        Stage stage, double[] x, double[] lower, double[] upper, SpectrumFitOptions options, int start, int index, int count)
+        Stage stage, double[] x, double[] lower, double[] upper, SpectrumFitOptions options, int start, int index, int count, bool comparison = false)
     {
         var model = new SpectralModel(problem.System, layout, data, problem.Shape, engine, stage.BroadeningHz) { Steps = Steps(layout, x, data) };
         var (lo, hi) = ((double[])lower.Clone(), (double[])upper.Clone());
@@ -394,11 +394,12 @@ public static class SpectrumFitter
             // A broadened stage only has to bring the next one into its basin: a relative change of the cost below
             // 1e-6 there changes nothing that the narrower stages see. The last, thinned stage ranks the optima, which
             // count as the same within 1e-4 (SameOptimumTolerance), and hands the best to the polish; it stops once a
-            // step gains less than 1e-6 of the cost (a bad optimum otherwise crawls there for dozens of steps). The
-            // polish converges fully.
+            // step gains less than 1e-6 of the cost (a bad optimum otherwise crawls there for dozens of steps), and a
+            // comparison refit at 1e-5: an optimum near the best is polished on all points before it is judged
+            // (SolutionReport), and one far from it needs no more digits. The polish converges fully.
             GradientTolerance = stage.BroadeningHz > 0 ? 1e-8 : 1e-10,
             StepTolerance = stage.BroadeningHz > 0 ? 1e-6 : 1e-10,
-            FunctionTolerance = stage.Polish ? 1e-12 : 1e-6,
+            FunctionTolerance = stage.Polish ? 1e-12 : stage.BroadeningHz == 0 && comparison ? 1e-5 : 1e-6,
             Progress = progress,
             Cancellation = options.Cancel,
         });
