@@ -55,6 +55,40 @@ public class SignSearchTests
         Assert.All(rows.Where(r => r.Label.StartsWith('δ')), r => Assert.Equal("", r.Sign));
     }
 
+    /// <summary>
+    /// Reversing every coupling leaves a spectrum as it is (common practice, no source): checked here on the misfit
+    /// itself, and relied on by the fitter, which lets a start on another start's mirror path share its mirrored outcome
+    /// rather than run the remaining stages again. With one coupling held the reversal is no symmetry, and no start joins
+    /// that way.
+    /// </summary>
+    [Theory]
+    [InlineData(false)]
+    [InlineData(true)]
+    public void A_start_on_the_mirror_path_of_another_shares_its_mirrored_outcome(bool holdOneCoupling)
+    {
+        var truth = AbxTruth();
+        var trace = Synthetic(truth, 0.8, 16384, 0.005, 4);
+        var setup = holdOneCoupling ? AbxRegions with { Fix = ["j:B-X"] } : AbxRegions;
+        var search = new SpectrumFitter.Search(Problem(AllPositive(truth, 3.08), trace, setup, 0.8), new SpectrumFitOptions());
+        var layout = search.Layout;
+        bool IsCoupling(int f) => layout.Parameters[layout.FreeRepresentatives[f]].Kind == ParameterKind.JHz;
+        var x = search.Aligned(search.GivenStart);
+        var image = x.Select((v, f) => IsCoupling(f) ? -v : v).ToArray();
+
+        var (optima, joined) = search.RunStarts([new FitStart(x, "start"), new FitStart(image, "its mirror image")]);
+
+        if (holdOneCoupling)
+        {
+            Assert.Equal(0, joined);
+            return;
+        }
+        Assert.Equal(1, joined);
+        var (a, b) = (optima[0].Free, optima[1].Free);
+        for (var f = 0; f < a.Length; f++) Assert.Equal(IsCoupling(f) ? -a[f] : a[f], b[f]);
+        Assert.Equal(optima[0].Cost, optima[1].Cost);
+        Assert.Equal(search.Cost(a), search.Cost(b), 1e-10 * search.Cost(a));
+    }
+
     [Fact]
     public void AllylicSignIsRecoveredAndReportedRelativeToTheVicinal()
     {

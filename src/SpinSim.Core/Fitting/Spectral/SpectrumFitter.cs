@@ -154,6 +154,7 @@ public static class SpectrumFitter
             GivenStart = Layout.FreeStart();
             for (var f = 0; f < GivenStart.Length; f++) GivenStart[f] = Math.Clamp(GivenStart[f], Lower[f], Upper[f]);
             _stages = Stages(problem, options);
+            _mirror = MirrorCouplings(problem, Layout, Lower, Upper);
             // The broadened, thinned data of each stage is the same for every start.
             _stageData = _stages.Select(stage => Prepared.Select((p, d) => p.Broadened(problem.Data[d].Trace, stage.BroadeningHz, stage.Stride)).ToArray()).ToArray();
         }
@@ -170,6 +171,8 @@ public static class SpectrumFitter
             var current = starts.Select(x => (double[])x.Free.Clone()).ToArray();
             var last = new LeastSquaresResult?[starts.Count];
             var follows = Enumerable.Range(0, starts.Count).ToArray();
+            // Whether a start follows its leader's mirror image (every coupling reversed) rather than the leader itself.
+            var mirrored = new bool[starts.Count];
             var running = Enumerable.Range(0, starts.Count).ToList();
             var widthHz = StartWidthHz(Problem);
             for (var k = 0; k < _stages.Count; k++)
@@ -187,9 +190,17 @@ public static class SpectrumFitter
                 var kept = new List<int>();
                 foreach (var s in running)
                 {
-                    // A start with bounds of its own (a held sign pattern) follows only a start with the same bounds.
+                    // A start with bounds of its own (a held sign pattern) follows only a start with the same bounds. A
+                    // start whose couplings all have the opposite signs of another's is on that start's mirror path:
+                    // reversing every coupling leaves the spectrum as it is (common practice, no source).
                     var leader = kept.FirstOrDefault(t => SameBounds(starts[s], starts[t])
                         && SpinDistanceHz(Problem, Layout, current[s], current[t]) <= toleranceHz, -1);
+                    if (leader < 0 && _mirror is not null && starts[s].Lower is null)
+                    {
+                        var image = Mirror(current[s]);
+                        leader = kept.FirstOrDefault(t => starts[t].Lower is null && SpinDistanceHz(Problem, Layout, image, current[t]) <= toleranceHz, -1);
+                        mirrored[s] = leader >= 0;
+                    }
                     if (leader >= 0) follows[s] = leader; else kept.Add(s);
                 }
                 running = kept;
@@ -197,11 +208,36 @@ public static class SpectrumFitter
             var optima = new List<FitOptimum>();
             for (var s = 0; s < starts.Count; s++)
             {
-                var leader = s;
-                while (follows[leader] != leader) leader = follows[leader];
-                if (last[leader] is { } result) optima.Add(new FitOptimum(current[leader], result, starts[s].Origin));
+                var (leader, image) = (s, false);
+                while (follows[leader] != leader) (image, leader) = (image ^ mirrored[leader], follows[leader]);
+                if (last[leader] is not { } result) continue;
+                optima.Add(image
+                    ? new FitOptimum(Mirror(current[leader]), result with { Parameters = Mirror(result.Parameters) }, starts[s].Origin)
+                    : new FitOptimum(current[leader], result, starts[s].Origin));
             }
             return (optima, starts.Count - running.Count);
+        }
+
+        /// <summary>
+        /// The free couplings, when reversing them all is a symmetry of the fit: every coupling of the system is varied
+        /// and each has bounds symmetric about zero. Null otherwise.
+        /// </summary>
+        private readonly int[]? _mirror;
+
+        private static int[]? MirrorCouplings(SpectrumFitProblem problem, ParameterLayout layout, double[] lower, double[] upper)
+        {
+            var free = SignSearch.FreeOfCoupling(layout, problem.System.Couplings.Count);
+            if (free.Length == 0 || free.Any(f => f < 0)) return null;
+            var distinct = free.Distinct().ToArray();
+            return distinct.All(f => lower[f] == -upper[f]) ? distinct : null;
+        }
+
+        /// <summary><paramref name="free"/> with every coupling reversed (<see cref="_mirror"/>).</summary>
+        private double[] Mirror(double[] free)
+        {
+            var x = (double[])free.Clone();
+            foreach (var f in _mirror!) x[f] = -x[f];
+            return x;
         }
 
         private static bool SameBounds(FitStart a, FitStart b) =>
