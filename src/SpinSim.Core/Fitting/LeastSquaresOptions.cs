@@ -29,6 +29,13 @@ public sealed record LeastSquaresOptions
     /// <summary>Stop when both the actual and the predicted relative reduction of the sum of squares are at most this.</summary>
     public double FunctionTolerance { get; init; } = 1e-10;
 
+    /// <summary>
+    /// Stop (<see cref="StopReason.AboveLimit"/>) once the least sum of squares of the local Gauss-Newton model,
+    /// RSS - |P r|^2 with P the projection onto the free Jacobian columns, is above this: for a caller that only needs
+    /// to know whether the minimum comes near some level. Bounds can only raise that least value.
+    /// </summary>
+    public double StopAboveCost { get; init; } = double.PositiveInfinity;
+
     /// <summary>Per-parameter lower bounds (use double.NegativeInfinity for none); null for no lower bounds.</summary>
     public double[]? LowerBounds { get; init; }
 

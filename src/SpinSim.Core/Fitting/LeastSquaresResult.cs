@@ -27,6 +27,10 @@ public enum StopReason
     /// <summary>Not converged: no further reduction could be made, yet a Gauss-Newton step from the point is not negligible
     /// (for example parameters drifting towards infinity, a wrong Jacobian, or a non-smooth model).</summary>
     NoProgress,
+
+    /// <summary>Stopped as asked: the local Gauss-Newton model put the least sum of squares within reach above the
+    /// caller's <see cref="LeastSquaresOptions.StopAboveCost"/>. The point is the best one reached.</summary>
+    AboveLimit,
 }
 
 /// <summary>

@@ -138,6 +138,13 @@ public static class LevenbergMarquardt
                     for (int j = 0; j < _n; j++) _scale[j] = Math.Max(_scale[j], ColumnNorm(j));
                 var freeArray = free.ToArray();
                 var svd = ScaledJacobianSvd.Decompose(_jac, _r, freeArray, _scale);
+                if (_o.StopAboveCost < double.PositiveInfinity)
+                {
+                    double reachable = _rss;
+                    foreach (var c in svd.C) reachable -= c * c;
+                    if (reachable > _o.StopAboveCost)
+                        return Finish(StopReason.AboveLimit, $"the local model's least sum of squares, {reachable:G4}, is above the limit {_o.StopAboveCost:G4}");
+                }
                 int rank = svd.RankAt(0);
                 var scaledStep = new double[freeArray.Length];
 

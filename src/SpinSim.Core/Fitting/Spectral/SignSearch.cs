@@ -3,11 +3,16 @@ using SpinSim.Core.Model;
 namespace SpinSim.Core.Fitting.Spectral;
 
 /// <summary>
-/// A start for the fitter's stages, where it came from, and bounds of its own when it has them. A
-/// <paramref name="Comparison"/> refit (a sign pattern, a second solution) only has to tell how its optimum compares with
-/// the best: its last thinned stage stops at a gain of 1e-5 per step, where a start stops at 1e-6.
+/// A start for the fitter's stages, where it came from, and bounds of its own when it has them. A comparison refit (a sign
+/// pattern, a second solution) only has to tell how its optimum compares with the best, whose cost at the last thinned
+/// stage is <paramref name="CompareWith"/>: its last stage stops at a gain of 1e-5 per step, where a start stops at
+/// 1e-6, and as soon as the local model shows that it cannot come within <see cref="SignSearch.ClearlyWorse"/> times
+/// that cost.
 /// </summary>
-internal sealed record FitStart(double[] Free, string Origin, double[]? Lower = null, double[]? Upper = null, bool Comparison = false);
+internal sealed record FitStart(double[] Free, string Origin, double[]? Lower = null, double[]? Upper = null, double? CompareWith = null)
+{
+    public bool Comparison => CompareWith is not null;
+}
 
 /// <summary>An optimum reached by the fitter from one start, and where that start came from.</summary>
 internal sealed record FitOptimum(double[] Free, LeastSquaresResult Result, string Origin)
@@ -28,6 +33,12 @@ internal static class SignSearch
 {
     /// <summary>Rounds of single and pair reversals in groups above <see cref="CouplingSigns.ExhaustiveLimit"/>.</summary>
     private const int MaxGreedyRounds = 4;
+
+    /// <summary>
+    /// A refit whose misfit cannot come within this factor of the best's is clearly worse, and stops: Hamilton's
+    /// critical ratio (<see cref="MisfitComparison"/>) stays below 3 from 4 effective degrees of freedom on.
+    /// </summary>
+    public const double ClearlyWorse = 4;
 
     /// <summary>A held sign keeps a coupling at least this far (Hz) from zero, so that the optimum still has the sign.</summary>
     private const double HeldSignFloorHz = 1e-3;
@@ -67,7 +78,7 @@ internal static class SignSearch
                 patterns += flips.Count;
                 var held = free.Where(f => f >= 0).ToArray();
                 var batch = flips.Select(p => HoldingSigns(Flip(current.Free, p, bounds), held, bounds,
-                    "signs reversed: " + string.Join(", ", p.Select(f => Name(layout, f))))).Concat(second).ToList();
+                    "signs reversed: " + string.Join(", ", p.Select(f => Name(layout, f))), current.Cost)).Concat(second).ToList();
                 second = [];
                 var reached = refit(batch);
                 optima.AddRange(reached);
@@ -104,7 +115,7 @@ internal static class SignSearch
             .Where(c => freeOfCoupling[c] >= 0 && bounds.Lower[freeOfCoupling[c]] < 0 && bounds.Upper[freeOfCoupling[c]] > 0).ToHashSet();
 
     /// <summary>A start at <paramref name="x"/> whose couplings in <paramref name="group"/> keep the signs they have there.</summary>
-    private static FitStart HoldingSigns(double[] x, int[] group, (double[] Lower, double[] Upper) bounds, string origin)
+    private static FitStart HoldingSigns(double[] x, int[] group, (double[] Lower, double[] Upper) bounds, string origin, double compareWith)
     {
         var (lower, upper) = ((double[])bounds.Lower.Clone(), (double[])bounds.Upper.Clone());
         foreach (var f in group)
@@ -113,7 +124,7 @@ internal static class SignSearch
             else upper[f] = Math.Min(upper[f], -HeldSignFloorHz);
             x[f] = Math.Clamp(x[f], lower[f], upper[f]);
         }
-        return new FitStart(x, origin, lower, upper, Comparison: true);
+        return new FitStart(x, origin, lower, upper, compareWith);
     }
 
     private static double[] Flip(double[] free, IReadOnlyList<int> indices, (double[] Lower, double[] Upper) bounds)
@@ -163,7 +174,7 @@ internal static class SignSearch
                     free[couplingFree[ax]] = other.Couplings[ax].J.Value;
                     free[couplingFree[bx]] = other.Couplings[bx].J.Value;
                     for (var f = 0; f < free.Length; f++) free[f] = Math.Clamp(free[f], bounds.Lower[f], bounds.Upper[f]);
-                    yield return new FitStart(free, $"ABX second solution of {fitted.Nuclei[a].Id}, {fitted.Nuclei[b].Id} with {fitted.Nuclei[x].Id}", Comparison: true);
+                    yield return new FitStart(free, $"ABX second solution of {fitted.Nuclei[a].Id}, {fitted.Nuclei[b].Id} with {fitted.Nuclei[x].Id}", CompareWith: best.Cost);
                 }
             }
     }

@@ -80,9 +80,10 @@ internal static class SolutionReport
         var signReports = verdicts.Select(v => new CouplingSignReport(CouplingName(v.Coupling), v.Determined, v.RelativeTo.Select(CouplingName).ToArray(),
             v.MisfitRatio, v.Probability, v.Reason)).ToArray();
 
-        // Distinct optima: one representative per cluster of optima closer than the joining tolerance.
+        // Distinct optima: one representative per cluster of optima closer than the joining tolerance. A refit stopped as
+        // clearly worse (StopReason.AboveLimit) reached no optimum and is not counted.
         var distinct = new List<FitOptimum> { best };
-        foreach (var o in optima.OrderBy(o => o.Cost))
+        foreach (var o in optima.Where(o => o.Result.Reason != StopReason.AboveLimit).OrderBy(o => o.Cost))
             if (distinct.All(d => distanceHz(d.Free, o.Free) > sameToleranceHz)) distinct.Add(o);
 
         var alternatives = new List<(double[] Full, AlternativeSolution Solution)>();

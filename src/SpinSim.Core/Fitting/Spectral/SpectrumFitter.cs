@@ -182,7 +182,7 @@ public static class SpectrumFitter
                 Parallel.ForEach(running, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, s =>
                 {
                     last[s] = RunStage(Problem, Layout, _stageData[k], Engine, stage, current[s], starts[s].Lower ?? Lower, starts[s].Upper ?? Upper,
-                        Options, s, k, _stages.Count, starts[s].Comparison);
+                        Options, s, k, _stages.Count, starts[s].CompareWith);
                     current[s] = last[s]!.Parameters;
                 });
                 if (stage.BroadeningHz <= 0 || !Options.JoinStarts) continue;
@@ -407,7 +407,7 @@ public static class SpectrumFitter
     private sealed record Stage(double BroadeningHz, int Stride, bool HoldCouplings, bool Polish = false);
 
     private static LeastSquaresResult RunStage(SpectrumFitProblem problem, ParameterLayout layout, PreparedData[] data, EngineOptions engine,
-        Stage stage, double[] x, double[] lower, double[] upper, SpectrumFitOptions options, int start, int index, int count, bool comparison = false)
+        Stage stage, double[] x, double[] lower, double[] upper, SpectrumFitOptions options, int start, int index, int count, double? compareWith = null)
     {
         var model = new SpectralModel(problem.System, layout, data, problem.Shape, engine, stage.BroadeningHz) { Steps = Steps(layout, x, data) };
         var (lo, hi) = ((double[])lower.Clone(), (double[])upper.Clone());
@@ -435,7 +435,8 @@ public static class SpectrumFitter
             // (SolutionReport), and one far from it needs no more digits. The polish converges fully.
             GradientTolerance = stage.BroadeningHz > 0 ? 1e-8 : 1e-10,
             StepTolerance = stage.BroadeningHz > 0 ? 1e-6 : 1e-10,
-            FunctionTolerance = stage.Polish ? 1e-12 : stage.BroadeningHz == 0 && comparison ? 1e-5 : 1e-6,
+            FunctionTolerance = stage.Polish ? 1e-12 : stage.BroadeningHz == 0 && compareWith is not null ? 1e-5 : 1e-6,
+            StopAboveCost = stage.BroadeningHz == 0 && compareWith is { } reference ? SignSearch.ClearlyWorse * reference : double.PositiveInfinity,
             Progress = progress,
             Cancellation = options.Cancel,
         });
