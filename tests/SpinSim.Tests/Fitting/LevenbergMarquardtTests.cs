@@ -53,6 +53,30 @@ public class LevenbergMarquardtTests
         return (intercept, slope, Math.Sqrt(s2 * (1.0 / n + mx * mx / sxx)), Math.Sqrt(s2 / sxx));
     }
 
+    /// <summary>
+    /// For a model linear in its parameters the Gauss-Newton model is exact, so its least sum of squares is the closed-form
+    /// minimum (Draper and Smith, ch. 1): a limit below it stops the minimiser before its first step, a limit above it
+    /// changes nothing.
+    /// </summary>
+    [Theory]
+    [InlineData(0.5, true)]
+    [InlineData(2.0, false)]
+    public void A_cost_limit_stops_only_when_the_local_model_cannot_reach_it(double limitOverMinimum, bool stops)
+    {
+        var ols = OrdinaryLeastSquares();
+        var minimum = LineX.Zip(LineY, (x, y) => Math.Pow(y - ols.Intercept - ols.Slope * x, 2)).Sum();
+        var result = LevenbergMarquardt.Minimise(Line(true), [0, 0], new LeastSquaresOptions { StopAboveCost = limitOverMinimum * minimum });
+        if (stops)
+        {
+            Assert.Equal(StopReason.AboveLimit, result.Reason);
+            Assert.False(result.Converged);
+            Assert.Equal(0, result.Iterations);
+            return;
+        }
+        Assert.True(result.Converged, result.Message);
+        Assert.Equal(minimum, result.ResidualSumOfSquares, 1e-12);
+    }
+
     [Theory]
     [InlineData(true)]
     [InlineData(false)]
