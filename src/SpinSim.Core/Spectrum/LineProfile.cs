@@ -138,8 +138,8 @@ public readonly struct LineProfile
     /// <summary>
     /// Adds <paramref name="scale"/> x <see cref="Phased"/> at the offsets <paramref name="firstOffsetHz"/> + j
     /// <paramref name="stepHz"/> to <paramref name="target"/>[j], for every j of the span: the drawing loop of a line's
-    /// near field, vectorised (System.Numerics.Vector) for the Lorentzian, whose value is a rational function, and for
-    /// pure Gaussian absorption (the vector exponential).
+    /// near field, vectorised (System.Numerics.Vector) for the Lorentzian, whose value is a rational function, for
+    /// pure Gaussian absorption (the vector exponential), and for tabulated Voigt absorption (gathers from the table).
     /// </summary>
     public void AddPhased(Span<double> target, double firstOffsetHz, double stepHz, double scale, PhaseRotation phase)
     {
@@ -187,6 +187,12 @@ public readonly struct LineProfile
                 var u = (firstOffsetHz + j * stepHz) * r;
                 target[j] += a * Math.Exp(-u * u);
             }
+            return;
+        }
+        if (_kernel is { } kernel && phase.Sin == 0)
+        {
+            // Tabulated Voigt absorption: scale cos norm Re w((x + i h) reduce), vectorised in the kernel.
+            kernel.AddRealPart(target, firstOffsetHz * _reduce, stepHz * _reduce, scale * phase.Cos * _norm);
             return;
         }
         for (; j < target.Length; j++) target[j] += scale * Phased(firstOffsetHz + j * stepHz, phase);

@@ -120,17 +120,8 @@ public static class TraceSynthesizer
             var jobs = new List<Action<Complex[]>>();
             foreach (var (profile, group) in smooth)
                 jobs.Add(sum => AddSmooth(all, group, profile, phase, axis, n, sum));
-            Complex[][]? deposits = null;
-            if (far is not null)
-            {
-                deposits = FarDeposits(all, multipole, shape, phase, axis, n);
-                for (var p = 0; p < deposits.Length; p++)
-                {
-                    var pair = p;
-                    jobs.Add(sum => AddFarPair(deposits[pair], pair, far, sum));
-                }
-            }
-            // Each job into its own (pooled) spectrum, summed in job order, so that the trace is the same on every run.
+            // Each smooth group into its own (pooled) spectrum, summed in job order, so that the trace is the same on every
+            // run; then the far fields, their deposits transformed in parallel and added in one pass.
             var parts = new Complex[jobs.Count][];
             Parallel.For(0, jobs.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, j =>
             {
@@ -141,6 +132,13 @@ public static class TraceSynthesizer
             {
                 for (var k = 0; k < n; k++) spectrum[k] += part[k];
                 Release(part);
+            }
+            Complex[][]? deposits = null;
+            if (far is not null)
+            {
+                deposits = FarDeposits(all, multipole, shape, phase, axis, n);
+                Parallel.For(0, deposits.Length, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, p => Fft.Forward(deposits[p]));
+                AddFarFields(deposits, far, spectrum);
             }
             Fft.Inverse(spectrum);
             for (var j = 0; j < points; j++) trace[j] = spectrum[j].Real / n;
@@ -312,21 +310,33 @@ public static class TraceSynthesizer
         if (z.Length >= PooledFrom) ArrayPool<Complex>.Shared.Return(z);
     }
 
-    /// <summary>Adds to <paramref name="sum"/> the far fields of terms K = 2 <paramref name="pair"/> and K + 1 from their packed deposits <paramref name="z"/> (transformed in place).</summary>
-    private static void AddFarPair(Complex[] z, int pair, double[][] kernels, Complex[] sum)
+    /// <summary>
+    /// Adds to <paramref name="sum"/> the far fields of every term from the transformed packed deposits: pair p holds
+    /// terms K = 2p (kernel odd, transform i t_K) and K + 1 (kernel even, transform t_(K+1)), which the conjugate
+    /// symmetry of real sequences separates. One pass over the frequencies, in parallel ranges; each frequency sums the
+    /// pairs in order, so the result does not depend on the threads.
+    /// </summary>
+    private static void AddFarFields(Complex[][] deposits, double[][] kernels, Complex[] sum)
     {
-        var n = z.Length;
-        Fft.Forward(z);
-        var odd = kernels[2 * pair];
-        var even = kernels[2 * pair + 1];
-        // K even: its kernel is odd, with transform i odd[k]; K + 1: its kernel is even, with transform even[k].
-        for (var k = 0; k < n; k++)
+        var n = sum.Length;
+        var ranges = Math.Min(Environment.ProcessorCount, Math.Max(1, n / 4096));
+        Parallel.For(0, ranges, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, r =>
         {
-            var mirror = Complex.Conjugate(z[(n - k) & (n - 1)]);
-            var a = 0.5 * (z[k] + mirror);
-            var b = (z[k] - mirror) * new Complex(0, -0.5);
-            sum[k] += a * new Complex(0, odd[k]) + b * even[k];
-        }
+            for (var k = (int)((long)n * r / ranges); k < (int)((long)n * (r + 1) / ranges); k++)
+            {
+                var mirrorIndex = (n - k) & (n - 1);
+                var total = Complex.Zero;
+                for (var p = 0; p < deposits.Length; p++)
+                {
+                    var z = deposits[p][k];
+                    var mirror = Complex.Conjugate(deposits[p][mirrorIndex]);
+                    var a = 0.5 * (z + mirror);
+                    var b = (z - mirror) * new Complex(0, -0.5);
+                    total += a * new Complex(0, kernels[2 * p][k]) + b * kernels[2 * p + 1][k];
+                }
+                sum[k] += total;
+            }
+        });
     }
 
     /// <summary>m_K = E[(w + g)^K] for g normal with deviation sigma: m_0 = 1, m_1 = w, m_(K+1) = w m_K + K sigma^2 m_(K-1).</summary>

@@ -1,5 +1,7 @@
 using System.Numerics;
 using System.Runtime.CompilerServices;
+using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace SpinSim.Core.Spectrum;
 
@@ -17,7 +19,7 @@ namespace SpinSim.Core.Spectrum;
 /// hold the kernel to the Faddeeva function within 1e-13 of the peak and 1e-11 of the local value (seen:
 /// 1.3e-14 and 1.3e-12).
 /// </remarks>
-internal sealed class VoigtKernel
+internal sealed unsafe class VoigtKernel
 {
     private const double FineReach = 16;
     private const int FineStepsPerUnit = 128;
@@ -27,15 +29,15 @@ internal sealed class VoigtKernel
     private static readonly double TwoOverSqrtPi = 2 / Math.Sqrt(Math.PI);
     private static VoigtKernel? _lastBuilt;
 
-    // Monomial coefficients of each interval's quintic in t = (|x| - x_j) / h, six per interval.
-    private readonly double[] _fine;
-    private readonly double[] _coarse;
+    // Monomial coefficients of each interval's quintic in t = (|x| - x_j) / h, six per interval: the fine intervals
+    // first, then the coarse ones (from interval FineIntervals on).
+    private readonly double[] _table;
+    private const int FineIntervals = (int)(FineReach * FineStepsPerUnit);
 
     private VoigtKernel(double y)
     {
         Y = y;
-        _fine = Tabulate(y, 0, FineReach, FineStepsPerUnit);
-        _coarse = Tabulate(y, FineReach, CoarseReach, CoarseStepsPerUnit);
+        _table = [.. Tabulate(y, 0, FineReach, FineStepsPerUnit), .. Tabulate(y, FineReach, CoarseReach, CoarseStepsPerUnit)];
     }
 
     public double Y { get; }
@@ -57,9 +59,49 @@ internal sealed class VoigtKernel
         double a = Math.Abs(x);
         if (a >= CoarseReach)
             return Faddeeva.FarWingRealPart(a, Y);
-        return a < FineReach
-            ? Interpolate(_fine, a * FineStepsPerUnit)
-            : Interpolate(_coarse, (a - FineReach) * CoarseStepsPerUnit);
+        return Interpolate(_table, a < FineReach ? a * FineStepsPerUnit : FineIntervals + (a - FineReach) * CoarseStepsPerUnit);
+    }
+
+    /// <summary>
+    /// Adds <paramref name="scale"/> Re w(x_j + iY) at x_j = <paramref name="x0"/> + j <paramref name="dx"/> to
+    /// <paramref name="target"/>[j] for every j: a line's near field. Four points at a time where the processor gathers
+    /// (AVX2), each the same quintic as <see cref="RealPart"/>; points past the tables go one by one.
+    /// </summary>
+    public void AddRealPart(Span<double> target, double x0, double dx, double scale)
+    {
+        var j = 0;
+        if (Avx2.IsSupported && Fma.IsSupported && target.Length >= 4)
+        {
+            var ramp = Vector256.Create(0.0, 1, 2, 3) * dx;
+            var (fine, coarse, coarseFrom) = (Vector256.Create((double)FineStepsPerUnit), Vector256.Create((double)CoarseStepsPerUnit), Vector256.Create(FineReach));
+            var (coarseOffset, reach, vscale) = (Vector256.Create(FineIntervals - FineReach * CoarseStepsPerUnit), Vector256.Create(CoarseReach), Vector256.Create(scale));
+            var six = Vector128.Create(6);
+            fixed (double* table = _table)
+            fixed (double* output = target)
+            {
+                for (; j <= target.Length - 4; j += 4)
+                {
+                    var a = Vector256.Abs(Vector256.Create(x0 + j * dx) + ramp);
+                    if (Vector256.GreaterThanOrEqualAny(a, reach))
+                    {
+                        for (var k = j; k < j + 4; k++) output[k] += scale * RealPart(x0 + k * dx);
+                        continue;
+                    }
+                    // Position in intervals: a * 128 below 16, 2048 + (a - 16) * 8 beyond (FMA: a * 8 + (2048 - 128)).
+                    var position = Vector256.ConditionalSelect(Vector256.LessThan(a, coarseFrom), a * fine, Fma.MultiplyAdd(a, coarse, coarseOffset));
+                    var interval = Avx.ConvertToVector128Int32WithTruncation(position);
+                    var t = position - Avx.ConvertToVector256Double(interval);
+                    var index = Sse41.MultiplyLow(interval, six);
+                    var p = Fma.MultiplyAdd(t, Avx2.GatherVector256(table + 5, index, 8), Avx2.GatherVector256(table + 4, index, 8));
+                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table + 3, index, 8));
+                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table + 2, index, 8));
+                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table + 1, index, 8));
+                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table, index, 8));
+                    Fma.MultiplyAdd(vscale, p, Avx.LoadVector256(output + j)).Store(output + j);
+                }
+            }
+        }
+        for (; j < target.Length; j++) target[j] += scale * RealPart(x0 + j * dx);
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]

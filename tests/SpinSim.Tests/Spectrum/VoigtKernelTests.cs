@@ -33,4 +33,24 @@ public class VoigtKernelTests
         Assert.True(worstOfPeak <= 1e-13, $"error {worstOfPeak:E2} of the peak");
         Assert.True(worstOfValue <= 1e-11, $"error {worstOfValue:E2} of the value");
     }
+
+    /// <summary>
+    /// The near-field sweep (four points at a time where the processor gathers) gives each point what the kernel gives
+    /// it alone, across the fine and coarse tables and the asymptotic wing, for every span length and remainder.
+    /// </summary>
+    [Theory]
+    [InlineData(-20.0, 0.013, 3100)]   // across both tables, the fine one on both sides of zero
+    [InlineData(-120.0, 0.07, 3500)]   // from the asymptotic wing through every table and out again
+    [InlineData(15.9, 0.0001, 7)]      // a short span across the fine-coarse boundary, with a remainder
+    [InlineData(99.9, 0.03, 13)]       // across the edge of the tables
+    [InlineData(3.0, -0.2, 1)]         // one point, stepping down
+    public void A_sweep_adds_the_same_values_as_the_kernel_point_by_point(double x0, double dx, int points)
+    {
+        var kernel = VoigtKernel.For(0.8325546111576977);
+        var target = Enumerable.Range(0, points).Select(j => 0.25 * j).ToArray();
+        kernel.AddRealPart(target, x0, dx, 1.7);
+        var peak = kernel.RealPart(0);
+        for (var j = 0; j < points; j++)
+            Assert.Equal(0.25 * j + 1.7 * kernel.RealPart(x0 + j * dx), target[j], 1e-15 * Math.Max(1, 0.25 * j + 1.7 * peak));
+    }
 }
