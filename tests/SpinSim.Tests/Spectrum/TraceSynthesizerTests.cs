@@ -227,4 +227,27 @@ public class TraceSynthesizerTests
     private static void AssertRelative(double expected, double actual, double tolerance) =>
         Assert.True(Math.Abs(actual - expected) <= tolerance * Math.Abs(expected),
             $"expected {expected:R}, got {actual:R} (relative {Math.Abs(actual - expected) / Math.Abs(expected):E2}, allowed {tolerance:E1})");
+
+    /// <summary>
+    /// The widths shared by enough lines to be drawn by the smooth route are found exactly among any number of distinct
+    /// widths (checked against a plain count of every width): 1,024 lines of one width are found, 1,023 are not.
+    /// </summary>
+    [Theory]
+    [InlineData(1)]
+    [InlineData(2)]
+    public void Widths_shared_by_enough_lines_are_found_among_many_distinct_ones(int seed)
+    {
+        var random = new Random(seed);
+        var widths = Enumerable.Range(0, 60_000).Select(_ => 0.5 + random.NextDouble())
+            .Concat(Enumerable.Repeat(1.0, 1024)).Concat(Enumerable.Repeat(2.0, 1023)).Concat(Enumerable.Repeat(3.0, 5000))
+            .OrderBy(_ => random.Next()).ToArray();
+        var lines = widths.Select((w, i) => new RenderLine(i, 1, w)).ToArray();
+
+        var found = TraceSynthesizer.FrequentWidths(lines, 1024);
+
+        var expected = widths.GroupBy(w => w).Where(g => g.Count() >= 1024).ToDictionary(g => g.Key, g => g.Count());
+        Assert.Equal(expected.OrderBy(e => e.Key), found.OrderBy(e => e.Key));
+        Assert.Equal(1024, found[1.0]);
+        Assert.False(found.ContainsKey(2.0));
+    }
 }
