@@ -17,7 +17,8 @@ namespace SpinSim.Core.Spectrum;
 /// Lorentzian convolved with a Gaussian). Two ways of summing it are used:</para>
 /// <para>Smooth lines (many lines of one width, wide against a step): each line is deposited on the 12 grid nodes
 /// around it with Lagrange interpolation weights, and the deposits are convolved with the profile sampled at every
-/// distance of the grid, by FFT. The interpolation error of the profile is at most prod|u - n_k| max|P^(12)| / 12!,
+/// distance of the grid, by FFT (for a Voigt too narrow for that, on a grid 2 or 4 times finer, of which the trace takes
+/// every 2nd or 4th point). The interpolation error of the profile is at most prod|u - n_k| max|P^(12)| / 12!,
 /// where |P^(12)| is at most 12! / (pi h^13) for a Lorentzian component and 1.09 sqrt(12!) sigma^-12 times the
 /// Gaussian's peak for a Gaussian component (Cramér's bound on Hermite functions); a width is drawn this way only
 /// when that is below the tolerance.</para>
@@ -83,7 +84,7 @@ public static class TraceSynthesizer
         var axis = new Axis(firstHz, step, points);
 
         var trace = new double[points];
-        var smooth = new List<(LineProfile Profile, List<int> Lines)>();
+        var smooth = new List<(LineProfile Profile, int Oversampling, List<int> Lines)>();
         var multipole = new List<int>();
         var direct = new List<int>();
         Classify(lines, shape, phase, axis, smooth, multipole, direct);
@@ -101,7 +102,7 @@ public static class TraceSynthesizer
         }
         // The near radius grows with the width for every shape (the components scale with it).
         if (multipole.Count > 0) radius = FarRadius(shape.Profile(widest), step);
-        foreach (var (_, group) in smooth)
+        foreach (var (_, _, group) in smooth)
             foreach (var l in group)
             {
                 var node = Math.Floor(axis.Position(lines[l].CentreHz));
@@ -118,8 +119,8 @@ public static class TraceSynthesizer
             var spectrum = Scratch(n);
             var far = multipole.Count > 0 ? FarKernels(n, radius) : null;
             var jobs = new List<Action<Complex[]>>();
-            foreach (var (profile, group) in smooth)
-                jobs.Add(sum => AddSmooth(all, group, profile, phase, axis, n, sum));
+            foreach (var (profile, oversampling, group) in smooth)
+                jobs.Add(sum => AddSmooth(all, group, profile, oversampling, phase, axis, n, sum));
             // Each smooth group into its own (pooled) spectrum, summed in job order, so that the trace is the same on every
             // run; then the far fields, their deposits transformed in parallel and added in one pass.
             var parts = new Complex[jobs.Count][];
@@ -156,17 +157,19 @@ public static class TraceSynthesizer
     }
 
     /// <summary>
-    /// Smooth groups (one width, enough lines, interpolation error below the tolerance) go by Lagrange deposit; pure
-    /// Gaussian absorption and lines far outside the grid directly; everything else by multipoles.
+    /// Smooth groups (one width, enough lines, interpolation error below the tolerance on the grid or on one
+    /// <see cref="MostOversampling"/> or fewer times finer) go by Lagrange deposit; pure Gaussian absorption and lines far
+    /// outside the grid directly; everything else by multipoles.
     /// </summary>
     private static void Classify(ReadOnlySpan<RenderLine> lines, Lineshape shape, PhaseRotation phase, Axis axis,
-        List<(LineProfile, List<int>)> smooth, List<int> multipole, List<int> direct)
+        List<(LineProfile, int, List<int>)> smooth, List<int> multipole, List<int> direct)
     {
         var counts = FrequentWidths(lines, SmoothGroupMinimum);
         var chosen = counts
-            .Where(g => g.Value >= SmoothGroupMinimum && SmoothEnough(shape.Profile(g.Key, tabulated: true), phase, axis.Step))
-            .OrderByDescending(g => g.Value).Take(SmoothGroupMost)
-            .ToDictionary(g => g.Key, g => (Profile: shape.Profile(g.Key, tabulated: true), Lines: new List<int>(g.Value)));
+            .Select(g => (Width: g.Key, Count: g.Value, Oversampling: Oversampling(shape.Profile(g.Key, tabulated: true), phase, axis.Step)))
+            .Where(g => g.Count >= SmoothGroupMinimum && g.Oversampling > 0)
+            .OrderByDescending(g => g.Count).Take(SmoothGroupMost)
+            .ToDictionary(g => g.Width, g => (Profile: shape.Profile(g.Width, tabulated: true), g.Oversampling, Lines: new List<int>(g.Count)));
         // A pure Gaussian's absorption is negligible a few widths out: it needs no far field.
         var gaussianAbsorption = shape.Kind == LineshapeKind.Gaussian && phase.Sin == 0;
         for (var l = 0; l < lines.Length; l++)
@@ -207,6 +210,24 @@ public static class TraceSynthesizer
         foreach (var key in counters.Keys.ToArray())
             if (counters[key] < minimum) counters.Remove(key);
         return counters;
+    }
+
+    /// <summary>Finest grid the smooth route may deposit on: this many points per grid step.</summary>
+    private const int MostOversampling = 4;
+
+    /// <summary>
+    /// The fewest points per grid step at which the profile is smooth enough for the Lagrange deposit; 0 when none is.
+    /// A finer grid than the trace's (2 or 4 points per step) only for a Voigt: its other route draws every line's near
+    /// field from the table over 5 (half-width + 2.5 sigma) steps, which costs more than the finer transform; Lorentzian
+    /// near fields (a rational function) and pure Gaussian absorption (a few sigma) are cheaper drawn directly
+    /// (measured: DEVELOPERS.md, trace synthesis).
+    /// </summary>
+    private static int Oversampling(LineProfile profile, PhaseRotation phase, double step)
+    {
+        var most = profile.LorentzianFwhmHz > 0 && profile.SigmaHz > 0 ? MostOversampling : 1;
+        for (var q = 1; q <= most; q *= 2)
+            if (SmoothEnough(profile, phase, step / q)) return q;
+        return 0;
     }
 
     /// <summary>Whether the 12-node Lagrange interpolant of the profile, in steps, is within the tolerance of its peak.</summary>
@@ -382,36 +403,53 @@ public static class TraceSynthesizer
         for (var k = 1; k < m.Length - 1; k++) m[k + 1] = w * m[k] + k * variance * m[k - 1];
     }
 
-    /// <summary>Adds to <paramref name="sum"/> the transform of one width's Lagrange deposits convolved with its sampled profile.</summary>
-    private static void AddSmooth(RenderLine[] lines, List<int> members, LineProfile profile, PhaseRotation phase, Axis axis, int n, Complex[] sum)
+    /// <summary>
+    /// Adds to <paramref name="sum"/> the transform of one width's Lagrange deposits convolved with its sampled profile,
+    /// on a grid <paramref name="oversampling"/> times finer than the trace's (of nq = n q points). The trace takes every
+    /// q-th point of that convolution, whose transform folds the fine one: C[k] = (1/q) sum_m F[k + m n].
+    /// </summary>
+    private static void AddSmooth(RenderLine[] lines, List<int> members, LineProfile profile, int oversampling, PhaseRotation phase, Axis axis, int n, Complex[] sum)
     {
+        var nq = n * oversampling;
+        var fineStep = axis.Step / oversampling;
         // Deposits in the real part, the profile at every distance in the imaginary part: one transform for both.
-        var z = Scratch(n);
+        var z = Scratch(nq);
         Span<double> weights = stackalloc double[LagrangeNodes];
         foreach (var l in members)
         {
-            var u = axis.Position(lines[l].CentreHz);
+            var u = axis.Position(lines[l].CentreHz) * oversampling;
             var node = Math.Floor(u);
             LagrangeWeights(u - node, weights);
             var start = (long)node - LagrangeNodes / 2 + 1;
             for (var k = 0; k < LagrangeNodes; k++)
             {
-                var slot = (int)((start + k) & (n - 1));
+                var slot = (int)((start + k) & (nq - 1));
                 z[slot] = new Complex(z[slot].Real + lines[l].Area * weights[k], 0);
             }
         }
-        for (var d = -n / 2; d < n / 2; d++)
+        // The profile at distances -nq/2 .. nq/2 - 1 fine steps, drawn as one line's near field (vectorised where it can be).
+        var sampled = ArrayPool<double>.Shared.Rent(nq);
+        Array.Clear(sampled, 0, nq);
+        profile.AddPhased(sampled.AsSpan(0, nq), -nq / 2 * fineStep, fineStep, 1, phase);
+        for (var i = 0; i < nq; i++)
         {
-            var slot = d & (n - 1);
-            z[slot] = new Complex(z[slot].Real, profile.Phased(d * axis.Step, phase));
+            var slot = (i - nq / 2) & (nq - 1);
+            z[slot] = new Complex(z[slot].Real, sampled[i]);
         }
+        ArrayPool<double>.Shared.Return(sampled);
         Fft.Forward(z);
+        var fold = 1.0 / oversampling;
         for (var k = 0; k < n; k++)
         {
-            var mirror = Complex.Conjugate(z[(n - k) & (n - 1)]);
-            var deposits = 0.5 * (z[k] + mirror);
-            var kernel = (z[k] - mirror) * new Complex(0, -0.5);
-            sum[k] += deposits * kernel;
+            var total = Complex.Zero;
+            for (var m = k; m < nq; m += n)
+            {
+                var mirror = Complex.Conjugate(z[(nq - m) & (nq - 1)]);
+                var deposits = 0.5 * (z[m] + mirror);
+                var kernel = (z[m] - mirror) * new Complex(0, -0.5);
+                total += deposits * kernel;
+            }
+            sum[k] += fold * total;
         }
         Release(z);
     }
