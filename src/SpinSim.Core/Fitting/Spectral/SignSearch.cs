@@ -72,17 +72,22 @@ internal static class SignSearch
                 .Any(t => !searchable.Contains(t.i) && Math.Abs(t.c.J.Value) >= CouplingSigns.NegligibleHz && Touches(fitted, group, t.c));
             if (anchored) free.Insert(0, -1);
             var exhaustive = free.Count <= CouplingSigns.ExhaustiveLimit;
+            var held = free.Where(f => f >= 0).ToArray();
+            // A relative sign pattern refitted once (or the best's own) is not refitted again in a later greedy round.
+            var tried = new HashSet<string> { PatternKey(current.Free, held, anchored) };
             for (var round = 0; round < (exhaustive ? 1 : MaxGreedyRounds); round++)
             {
-                var flips = CouplingSigns.Patterns(new SignGroup(free)).Select(p => p.Where(f => f >= 0).ToArray()).Where(p => p.Length > 0).ToList();
+                var flips = CouplingSigns.Patterns(new SignGroup(free)).Select(p => p.Where(f => f >= 0).ToArray())
+                    .Where(p => p.Length > 0 && tried.Add(PatternKey(Flip(current.Free, p, bounds), held, anchored))).ToList();
+                if (flips.Count == 0) break;
                 patterns += flips.Count;
-                var held = free.Where(f => f >= 0).ToArray();
                 var batch = flips.Select(p => HoldingSigns(Flip(current.Free, p, bounds), held, bounds,
                     "signs reversed: " + string.Join(", ", p.Select(f => Name(layout, f))), current.Cost)).Concat(second).ToList();
                 second = [];
                 var reached = refit(batch);
                 optima.AddRange(reached);
-                var improved = reached.Where(o => o.Cost < current.Cost * (1 - 1e-9)).MinBy(o => o.Cost);
+                // An improvement within the fitter's same-optimum tolerance is the same optimum, not a new point to search from.
+                var improved = reached.Where(o => o.Cost < current.Cost * (1 - SpectrumFitter.SameOptimumTolerance)).MinBy(o => o.Cost);
                 if (improved is null) break;
                 current = improved;
             }
@@ -95,6 +100,13 @@ internal static class SignSearch
         }
         if (second.Count > 0 && !cancel.IsCancellationRequested) optima.AddRange(refit(second));
         return new Outcome(optima, patterns, secondTried, groups);
+    }
+
+    /// <summary>The signs of <paramref name="held"/> at <paramref name="x"/>, up to the overall sign unless the group is anchored.</summary>
+    private static string PatternKey(double[] x, int[] held, bool anchored)
+    {
+        var flip = !anchored && held.Length > 0 && x[held[0]] < 0;
+        return string.Concat(held.Select(f => (x[f] < 0) ^ flip ? '-' : '+'));
     }
 
     private static bool Touches(SpinSystem system, SignGroup group, Coupling c) =>
