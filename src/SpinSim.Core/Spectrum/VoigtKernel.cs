@@ -64,8 +64,9 @@ internal sealed unsafe class VoigtKernel
 
     /// <summary>
     /// Adds <paramref name="scale"/> Re w(x_j + iY) at x_j = <paramref name="x0"/> + j <paramref name="dx"/> to
-    /// <paramref name="target"/>[j] for every j: a line's near field. Four points at a time where the processor gathers
-    /// (AVX2), each the same quintic as <see cref="RealPart"/>; points past the tables go one by one.
+    /// <paramref name="target"/>[j] for every j: a line's near field. Four points at a time with AVX2 (each lane's
+    /// coefficients loaded and transposed), each the same quintic as <see cref="RealPart"/>; points past the tables go
+    /// one by one.
     /// </summary>
     public void AddRealPart(Span<double> target, double x0, double dx, double scale)
     {
@@ -92,11 +93,22 @@ internal sealed unsafe class VoigtKernel
                     var interval = Avx.ConvertToVector128Int32WithTruncation(position);
                     var t = position - Avx.ConvertToVector256Double(interval);
                     var index = Sse41.MultiplyLow(interval, six);
-                    var p = Fma.MultiplyAdd(t, Avx2.GatherVector256(table + 5, index, 8), Avx2.GatherVector256(table + 4, index, 8));
-                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table + 3, index, 8));
-                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table + 2, index, 8));
-                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table + 1, index, 8));
-                    p = Fma.MultiplyAdd(t, p, Avx2.GatherVector256(table, index, 8));
+                    // Each lane's six coefficients are contiguous: load them row by row and transpose (hardware gathers
+                    // are slower on some processors).
+                    double* r0 = table + index.GetElement(0), r1 = table + index.GetElement(1), r2 = table + index.GetElement(2), r3 = table + index.GetElement(3);
+                    var (a0, a1, a2, a3) = (Avx.LoadVector256(r0), Avx.LoadVector256(r1), Avx.LoadVector256(r2), Avx.LoadVector256(r3));
+                    var (low01, high01, low23, high23) = (Avx.UnpackLow(a0, a1), Avx.UnpackHigh(a0, a1), Avx.UnpackLow(a2, a3), Avx.UnpackHigh(a2, a3));
+                    var c0 = Avx.Permute2x128(low01, low23, 0x20);
+                    var c1 = Avx.Permute2x128(high01, high23, 0x20);
+                    var c2 = Avx.Permute2x128(low01, low23, 0x31);
+                    var c3 = Avx.Permute2x128(high01, high23, 0x31);
+                    var (e02, e13) = (Vector256.Create(Sse2.LoadVector128(r0 + 4), Sse2.LoadVector128(r2 + 4)), Vector256.Create(Sse2.LoadVector128(r1 + 4), Sse2.LoadVector128(r3 + 4)));
+                    var (c4, c5) = (Avx.UnpackLow(e02, e13), Avx.UnpackHigh(e02, e13));
+                    var p = Fma.MultiplyAdd(t, c5, c4);
+                    p = Fma.MultiplyAdd(t, p, c3);
+                    p = Fma.MultiplyAdd(t, p, c2);
+                    p = Fma.MultiplyAdd(t, p, c1);
+                    p = Fma.MultiplyAdd(t, p, c0);
                     Fma.MultiplyAdd(vscale, p, Avx.LoadVector256(output + j)).Store(output + j);
                 }
             }
