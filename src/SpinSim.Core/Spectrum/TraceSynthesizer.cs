@@ -87,7 +87,9 @@ public static class TraceSynthesizer
         var smooth = new List<(LineProfile Profile, int Oversampling, List<int> Lines)>();
         var multipole = new List<int>();
         var direct = new List<int>();
-        Classify(lines, shape, phase, axis, smooth, multipole, direct);
+        // In the order of their positions: deposits and near fields then write along the arrays, not all over them.
+        var all = InPositionOrder(lines, axis);
+        Classify(all, shape, phase, axis, smooth, multipole, direct);
 
         // The grid span the FFT must cover without wrapping: every deposit node and every output point.
         long lowest = 0, highest = points - 1;
@@ -95,22 +97,21 @@ public static class TraceSynthesizer
         var widest = 0.0;
         foreach (var l in multipole)
         {
-            var node = Math.Round(axis.Position(lines[l].CentreHz));
+            var node = Math.Round(axis.Position(all[l].CentreHz));
             lowest = Math.Min(lowest, (long)node);
             highest = Math.Max(highest, (long)node);
-            widest = Math.Max(widest, lines[l].FwhmHz);
+            widest = Math.Max(widest, all[l].FwhmHz);
         }
         // The near radius grows with the width for every shape (the components scale with it).
         if (multipole.Count > 0) radius = FarRadius(shape.Profile(widest), step);
         foreach (var (_, _, group) in smooth)
             foreach (var l in group)
             {
-                var node = Math.Floor(axis.Position(lines[l].CentreHz));
+                var node = Math.Floor(axis.Position(all[l].CentreHz));
                 lowest = Math.Min(lowest, (long)node - LagrangeNodes / 2 + 1);
                 highest = Math.Max(highest, (long)node + LagrangeNodes / 2);
             }
 
-        var all = lines.ToArray();
         if (smooth.Count > 0 || multipole.Count > 0)
         {
             // Distances up to N/2 either way are represented: N/2 must exceed every node-to-point distance.
@@ -529,6 +530,22 @@ public static class TraceSynthesizer
         low = Math.Max(low, 0);
         high = Math.Min(high, axis.Points - 1);
         return low > high ? (1, 0) : ((int)low, (int)high);
+    }
+
+    /// <summary>
+    /// The lines sorted by their grid position, by a counting sort on the whole step they fall in (lines beyond the grid
+    /// and its neighbours counted at its ends); within a step in their given order, so the order is always the same.
+    /// </summary>
+    private static RenderLine[] InPositionOrder(ReadOnlySpan<RenderLine> lines, Axis axis)
+    {
+        var buckets = 3 * axis.Points + 2;
+        int Bucket(RenderLine line) => (int)Math.Clamp(Math.Floor(axis.Position(line.CentreHz)) + axis.Points + 1, 0, buckets - 1);
+        var starts = new int[buckets + 1];
+        foreach (var line in lines) starts[Bucket(line) + 1]++;
+        for (var b = 0; b < buckets; b++) starts[b + 1] += starts[b];
+        var sorted = new RenderLine[lines.Length];
+        foreach (var line in lines) sorted[starts[Bucket(line)]++] = line;
+        return sorted;
     }
 
     private static void Validate(ReadOnlySpan<RenderLine> lines)
