@@ -89,7 +89,7 @@ public static class TraceSynthesizer
         var direct = new List<int>();
         // In the order of their positions: deposits and near fields then write along the arrays, not all over them.
         var all = InPositionOrder(lines, axis);
-        Classify(all, shape, phase, axis, smooth, multipole, direct);
+        Classify(all.AsSpan(0, lines.Length), shape, phase, axis, smooth, multipole, direct);
 
         // The grid span the FFT must cover without wrapping: every deposit node and every output point.
         long lowest = 0, highest = points - 1;
@@ -153,6 +153,7 @@ public static class TraceSynthesizer
         foreach (var l in direct) near.Add((l, -1));
         AddNear(all, near, shape, phase, axis, trace);
 
+        ArrayPool<RenderLine>.Shared.Return(all);
         if (reversed) Array.Reverse(trace);
         return trace;
     }
@@ -535,16 +536,20 @@ public static class TraceSynthesizer
     /// <summary>
     /// The lines sorted by their grid position, by a counting sort on the whole step they fall in (lines beyond the grid
     /// and its neighbours counted at its ends); within a step in their given order, so the order is always the same.
+    /// The array comes from the shared pool (its first lines.Length entries are the lines) and goes back at the end of
+    /// the drawing, as does the sort's count array: fresh large arrays cost more than the sort on a small machine.
     /// </summary>
     private static RenderLine[] InPositionOrder(ReadOnlySpan<RenderLine> lines, Axis axis)
     {
         var buckets = 3 * axis.Points + 2;
         int Bucket(RenderLine line) => (int)Math.Clamp(Math.Floor(axis.Position(line.CentreHz)) + axis.Points + 1, 0, buckets - 1);
-        var starts = new int[buckets + 1];
+        var starts = ArrayPool<int>.Shared.Rent(buckets + 1);
+        Array.Clear(starts, 0, buckets + 1);
         foreach (var line in lines) starts[Bucket(line) + 1]++;
         for (var b = 0; b < buckets; b++) starts[b + 1] += starts[b];
-        var sorted = new RenderLine[lines.Length];
+        var sorted = ArrayPool<RenderLine>.Shared.Rent(lines.Length);
         foreach (var line in lines) sorted[starts[Bucket(line)]++] = line;
+        ArrayPool<int>.Shared.Return(starts);
         return sorted;
     }
 
