@@ -139,7 +139,7 @@ public readonly struct LineProfile
     /// Adds <paramref name="scale"/> x <see cref="Phased"/> at the offsets <paramref name="firstOffsetHz"/> + j
     /// <paramref name="stepHz"/> to <paramref name="target"/>[j], for every j of the span: the drawing loop of a line's
     /// near field, vectorised (System.Numerics.Vector) for the Lorentzian, whose value is a rational function, for
-    /// pure Gaussian absorption (the vector exponential), and for tabulated Voigt absorption (gathers from the table).
+    /// pure Gaussian absorption (the vector exponential), and for tabulated Voigt absorption (<see cref="VoigtKernel.AddRealPart"/>).
     /// </summary>
     public void AddPhased(Span<double> target, double firstOffsetHz, double stepHz, double scale, PhaseRotation phase)
     {

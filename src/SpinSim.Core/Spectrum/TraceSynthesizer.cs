@@ -1,6 +1,7 @@
 using System.Buffers;
 // Method: far fields as multipole expansions of the Cauchy kernel about grid nodes (L. Greengard and V. Rokhlin, J. Comput. Phys. 73, 325, 1987, here in one dimension), summed by FFT convolution.
 using System.Numerics;
+using System.Runtime.CompilerServices;
 using SpinSim.Core.LinearAlgebra;
 
 namespace SpinSim.Core.Spectrum;
@@ -385,15 +386,24 @@ public static class TraceSynthesizer
                 var total = Complex.Zero;
                 for (var p = 0; p < deposits.Length; p++)
                 {
-                    var z = deposits[p][k];
-                    var mirror = Complex.Conjugate(deposits[p][mirrorIndex]);
-                    var a = 0.5 * (z + mirror);
-                    var b = (z - mirror) * new Complex(0, -0.5);
+                    var (a, b) = Unpack(deposits[p], k, mirrorIndex);
                     total += a * new Complex(0, kernels[2 * p][k]) + b * kernels[2 * p + 1][k];
                 }
                 sum[k] += total;
             }
         });
+    }
+
+    /// <summary>
+    /// The transforms, at frequency <paramref name="k"/>, of two real sequences packed as the real and imaginary parts of
+    /// one complex sequence whose transform is <paramref name="z"/> (<paramref name="mirror"/> = -k mod n): conjugate
+    /// symmetry separates them, X = (Z[k] + conj Z[-k]) / 2 and Y = (Z[k] - conj Z[-k]) / 2i.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static (Complex Real, Complex Imaginary) Unpack(Complex[] z, int k, int mirror)
+    {
+        var conjugate = Complex.Conjugate(z[mirror]);
+        return (0.5 * (z[k] + conjugate), (z[k] - conjugate) * new Complex(0, -0.5));
     }
 
     /// <summary>m_K = E[(w + g)^K] for g normal with deviation sigma: m_0 = 1, m_1 = w, m_(K+1) = w m_K + K sigma^2 m_(K-1).</summary>
@@ -446,9 +456,7 @@ public static class TraceSynthesizer
             var total = Complex.Zero;
             for (var m = k; m < nq; m += n)
             {
-                var mirror = Complex.Conjugate(z[(nq - m) & (nq - 1)]);
-                var deposits = 0.5 * (z[m] + mirror);
-                var kernel = (z[m] - mirror) * new Complex(0, -0.5);
+                var (deposits, kernel) = Unpack(z, m, (nq - m) & (nq - 1));
                 total += deposits * kernel;
             }
             sum[k] += fold * total;

@@ -9,10 +9,7 @@ namespace SpinSim.Core.Fitting.Spectral;
 /// 1e-6, and as soon as the local model shows that it cannot come within <see cref="SignSearch.ClearlyWorse"/> times
 /// that cost.
 /// </summary>
-internal sealed record FitStart(double[] Free, string Origin, double[]? Lower = null, double[]? Upper = null, double? CompareWith = null)
-{
-    public bool Comparison => CompareWith is not null;
-}
+internal sealed record FitStart(double[] Free, string Origin, double[]? Lower = null, double[]? Upper = null, double? CompareWith = null);
 
 /// <summary>An optimum reached by the fitter from one start, and where that start came from.</summary>
 internal sealed record FitOptimum(double[] Free, LeastSquaresResult Result, string Origin)
@@ -77,12 +74,13 @@ internal static class SignSearch
             var tried = new HashSet<string> { PatternKey(current.Free, held, anchored) };
             for (var round = 0; round < (exhaustive ? 1 : MaxGreedyRounds); round++)
             {
-                var flips = CouplingSigns.Patterns(new SignGroup(free)).Select(p => p.Where(f => f >= 0).ToArray())
-                    .Where(p => p.Length > 0 && tried.Add(PatternKey(Flip(current.Free, p, bounds), held, anchored))).ToList();
+                var flips = CouplingSigns.Patterns(new SignGroup(free)).Select(p => p.Where(f => f >= 0).ToArray()).Where(p => p.Length > 0)
+                    .Select(p => (Reversed: p, Start: Flip(current.Free, p, bounds)))
+                    .Where(t => tried.Add(PatternKey(t.Start, held, anchored))).ToList();
                 if (flips.Count == 0) break;
                 patterns += flips.Count;
-                var batch = flips.Select(p => HoldingSigns(Flip(current.Free, p, bounds), held, bounds,
-                    "signs reversed: " + string.Join(", ", p.Select(f => Name(layout, f))), current.Cost)).Concat(second).ToList();
+                var batch = flips.Select(t => HoldingSigns(t.Start, held, bounds,
+                    "signs reversed: " + string.Join(", ", t.Reversed.Select(f => Name(layout, f))), current.Cost)).Concat(second).ToList();
                 second = [];
                 var reached = refit(batch);
                 optima.AddRange(reached);

@@ -55,10 +55,11 @@ internal static class SolutionReport
         {
             var thinnedRatio = o.Cost / Math.Max(best.Cost, double.Epsilon);
             var signs = Signs(o.Free);
+            var full = layout.Expand(o.Free);
             // The best itself, reached again, relabelled (A with B in AA'BB') or mirrored (every sign reversed) gives the
             // same spectrum: polishing it would only give the best's misfit again.
             var again = ReferenceEquals(o, best) || distanceHz(o.Free, best.Free) <= sameToleranceHz
-                || (SameUpToSignsAndLabels(layout, bestFull, layout.Expand(o.Free)) && (signs.SequenceEqual(bestSigns) || signs.SequenceEqual(bestSigns.Select(v => -v))));
+                || (SameUpToSignsAndLabels(layout, bestFull, full) && (signs.SequenceEqual(bestSigns) || signs.SequenceEqual(bestSigns.Select(v => -v))));
             if (thinnedRatio > 1 + PolishMargin * (thinnedCritical - 1) || again)
             {
                 compared.Add(new Compared(o, signs, thinnedRatio, null));
@@ -66,7 +67,7 @@ internal static class SolutionReport
             }
             // The same optimum reached twice (the same signs, values within the relabelling tolerances) is polished once.
             var twin = compared.FirstOrDefault(c => c.Polished is not null && c.Signs.SequenceEqual(signs)
-                && SameUpToSignsAndLabels(layout, layout.Expand(c.Optimum.Free), layout.Expand(o.Free)));
+                && SameUpToSignsAndLabels(layout, layout.Expand(c.Optimum.Free), full));
             var refined = twin?.Polished ?? polish(o.Free);
             compared.Add(new Compared(o, signs, refined.ResidualSumOfSquares / Math.Max(polished.ResidualSumOfSquares, double.Epsilon), refined));
         }
