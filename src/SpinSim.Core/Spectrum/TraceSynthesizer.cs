@@ -2,6 +2,7 @@ using System.Buffers;
 // Method: far fields as multipole expansions of the Cauchy kernel about grid nodes (L. Greengard and V. Rokhlin, J. Comput. Phys. 73, 325, 1987, here in one dimension), summed by FFT convolution.
 using System.Numerics;
 using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 using SpinSim.Core.LinearAlgebra;
 
 namespace SpinSim.Core.Spectrum;
@@ -118,35 +119,38 @@ public static class TraceSynthesizer
             // Distances up to N/2 either way are represented: N/2 must exceed every node-to-point distance.
             var half = Math.Max(highest + 1, points - lowest);
             var n = (int)BitOperations.RoundUpToPowerOf2((ulong)(2 * half));
-            var spectrum = Scratch(n);
+            var spectrum = AlignedComplexArray.Rent(n);
             var far = multipole.Count > 0 ? FarKernels(n, radius) : null;
-            var jobs = new List<Action<Complex[]>>();
+            var jobs = new List<Action<AlignedComplexArray>>();
             foreach (var (profile, oversampling, group) in smooth)
                 jobs.Add(sum => AddSmooth(all, group, profile, oversampling, phase, axis, n, sum));
             // Each smooth group into its own (pooled) spectrum, summed in job order, so that the trace is the same on every
             // run; then the far fields, their deposits transformed in parallel and added in one pass.
-            var parts = new Complex[jobs.Count][];
+            var parts = new AlignedComplexArray[jobs.Count];
             Parallel.For(0, jobs.Count, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, j =>
             {
-                parts[j] = Scratch(n);
+                parts[j] = AlignedComplexArray.Rent(n);
                 jobs[j](parts[j]);
             });
             foreach (var part in parts)
             {
-                for (var k = 0; k < n; k++) spectrum[k] += part[k];
-                Release(part);
+                var total = spectrum.Span;
+                var add = part.Span;
+                for (var k = 0; k < n; k++) total[k] += add[k];
+                part.Return();
             }
-            Complex[][]? deposits = null;
+            AlignedComplexArray[]? deposits = null;
             if (far is not null)
             {
                 deposits = FarDeposits(all, multipole, shape, phase, axis, n);
-                Parallel.For(0, deposits.Length, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, p => Fft.Forward(deposits[p]));
+                Parallel.For(0, deposits.Length, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, p => Fft.Forward(deposits[p].Span));
                 AddFarFields(deposits, far, spectrum);
             }
-            Fft.Inverse(spectrum);
-            for (var j = 0; j < points; j++) trace[j] = spectrum[j].Real / n;
-            Release(spectrum);
-            foreach (var d in deposits ?? []) Release(d);
+            var result = spectrum.Span;
+            Fft.Inverse(result);
+            for (var j = 0; j < points; j++) trace[j] = result[j].Real / n;
+            spectrum.Return();
+            foreach (var d in deposits ?? []) d.Return();
         }
 
         var near = new List<(int Line, int Radius)>(multipole.Count + direct.Count);
@@ -188,31 +192,33 @@ public static class TraceSynthesizer
     }
 
     /// <summary>
-    /// The widths that at least <paramref name="minimum"/> lines share, with their counts, in two passes and a few
-    /// counters whatever the number of distinct widths (Misra and Gries's frequent-items count, Sci. Comput. Program. 2,
-    /// 143, 1982, cited from memory): with c counters every value occurring more than n / (c + 1) times keeps one, so
-    /// c = n / minimum keeps every width asked for; the second pass counts the candidates exactly.
+    /// The widths that at least <paramref name="minimum"/> lines share, with their counts. A first pass counts the lines in
+    /// 4,096 buckets by a hash of the width: a width that <paramref name="minimum"/> lines share fills its bucket at
+    /// least that far, so only the lines in such buckets are counted width by width (a dictionary of every distinct width
+    /// costs far more when, as is usual, the widths are many and each is rare).
     /// </summary>
     internal static Dictionary<double, int> FrequentWidths(ReadOnlySpan<RenderLine> lines, int minimum)
     {
-        var capacity = lines.Length / minimum;
-        var counters = new Dictionary<double, int>(capacity + 1);
-        if (capacity == 0) return counters;
+        var counts = new Dictionary<double, int>();
+        if (lines.Length < minimum) return counts;
+        const int BucketBits = 12;
+        static int Bucket(double width) => (int)((ulong)BitConverter.DoubleToInt64Bits(width) * 0x9E3779B97F4A7C15UL >> (64 - BucketBits));
+        Span<int> buckets = stackalloc int[1 << BucketBits];
+        buckets.Clear();
+        foreach (var line in lines) buckets[Bucket(line.FwhmHz)]++;
+        // Runs of one width (lines of one nucleus often come together) are counted as runs.
+        double run = double.NaN;
+        var length = 0;
         foreach (var line in lines)
         {
-            var w = line.FwhmHz;
-            if (counters.TryGetValue(w, out var c)) counters[w] = c + 1;
-            else if (counters.Count < capacity) counters[w] = 1;
-            else
-                foreach (var key in counters.Keys.ToArray())
-                    if (--counters[key] == 0) counters.Remove(key);
+            if (line.FwhmHz == run) { length++; continue; }
+            if (length > 0) CollectionsMarshal.GetValueRefOrAddDefault(counts, run, out _) += length;
+            (run, length) = buckets[Bucket(line.FwhmHz)] >= minimum ? (line.FwhmHz, 1) : (double.NaN, 0);
         }
-        foreach (var key in counters.Keys.ToArray()) counters[key] = 0;
-        foreach (var line in lines)
-            if (counters.TryGetValue(line.FwhmHz, out var c)) counters[line.FwhmHz] = c + 1;
-        foreach (var key in counters.Keys.ToArray())
-            if (counters[key] < minimum) counters.Remove(key);
-        return counters;
+        if (length > 0) CollectionsMarshal.GetValueRefOrAddDefault(counts, run, out _) += length;
+        foreach (var key in counts.Keys.ToArray())
+            if (counts[key] < minimum) counts.Remove(key);
+        return counts;
     }
 
     /// <summary>Finest grid the smooth route may deposit on: this many points per grid step.</summary>
@@ -307,9 +313,9 @@ public static class TraceSynthesizer
     /// The moment deposits Re[c m_K] (c = e^(i phi) i / (pi s), times the area) of every line at its node, for K = 0 ..
     /// Terms - 1, packed two terms (K even, K + 1) to one complex array.
     /// </summary>
-    private static Complex[][] FarDeposits(RenderLine[] lines, List<int> members, Lineshape shape, PhaseRotation phase, Axis axis, int n)
+    private static unsafe AlignedComplexArray[] FarDeposits(RenderLine[] lines, List<int> members, Lineshape shape, PhaseRotation phase, Axis axis, int n)
     {
-        var deposits = new Complex[Terms / 2][];
+        var deposits = new AlignedComplexArray[Terms / 2];
         var c = new Complex(phase.Cos, phase.Sin) * Complex.ImaginaryOne / (Math.PI * axis.Step);
         // Two halves of the term pairs on two threads: each works out every line's moments (cheap) and writes only its
         // own arrays, so that the scattered writes, which cost most, are shared.
@@ -317,55 +323,26 @@ public static class TraceSynthesizer
         Parallel.For(0, halves, new ParallelOptions { MaxDegreeOfParallelism = halves }, h =>
         {
             var (from, to) = (deposits.Length * h / halves, deposits.Length * (h + 1) / halves);
-            for (var p = from; p < to; p++) deposits[p] = Scratch(n);
+            var targets = new nint[deposits.Length];
+            for (var p = from; p < to; p++) targets[p] = (nint)(deposits[p] = AlignedComplexArray.Rent(n)).Pointer;
             Span<Complex> moments = stackalloc Complex[Terms];
-            double lastWidth = double.NaN, half = 0, sigma = 0;
+            // Both components scale with the width (Lineshape.Components): per Hz of width, in steps.
+            var unit = shape.Profile(1.0);
+            var (halfPerWidth, sigmaPerWidth) = (unit.LorentzianFwhmHz / 2 / axis.Step, unit.SigmaHz / axis.Step);
             foreach (var l in members)
             {
                 var line = lines[l];
-                if (line.FwhmHz != lastWidth)
-                {
-                    var profile = shape.Profile(line.FwhmHz);
-                    (lastWidth, half, sigma) = (line.FwhmHz, profile.LorentzianFwhmHz / 2 / axis.Step, profile.SigmaHz / axis.Step);
-                }
+                var (half, sigma) = (line.FwhmHz * halfPerWidth, line.FwhmHz * sigmaPerWidth);
                 var u = axis.Position(line.CentreHz);
                 var node = Math.Round(u);
                 Moments(new Complex(u - node, -half), sigma, moments[..(2 * to)]);
                 var slot = (int)((long)node & (n - 1));
                 var scale = c * line.Area;
                 for (var p = from; p < to; p++)
-                    deposits[p][slot] += new Complex((scale * moments[2 * p]).Real, (scale * moments[2 * p + 1]).Real);
+                    ((Complex*)targets[p])[slot] += new Complex((scale * moments[2 * p]).Real, (scale * moments[2 * p + 1]).Real);
             }
         });
         return deposits;
-    }
-
-    /// <summary>
-    /// A cleared complex array of exactly <paramref name="n"/> points (a power of two) from the shared pool. The
-    /// synthesiser needs a dozen arrays of twice the grid per trace; fresh ones cost more in page faults than the
-    /// transforms themselves on a small virtual machine, pooled ones are already in memory. The pool's sizes are powers
-    /// of two from <see cref="PooledFrom"/> up, so such an array comes back at exactly that length; smaller ones are
-    /// simply allocated (the pool would hand out a longer array and refuse a shorter one back).
-    /// </summary>
-    private static Complex[] Scratch(int n)
-    {
-        if (n < PooledFrom) return new Complex[n];
-        var z = ArrayPool<Complex>.Shared.Rent(n);
-        if (z.Length != n)
-        {
-            // Not the pool this was written against: the transforms need the exact length.
-            ArrayPool<Complex>.Shared.Return(z);
-            return new Complex[n];
-        }
-        Array.Clear(z);
-        return z;
-    }
-
-    private const int PooledFrom = 16;
-
-    private static void Release(Complex[] z)
-    {
-        if (z.Length >= PooledFrom) ArrayPool<Complex>.Shared.Return(z);
     }
 
     /// <summary>
@@ -374,9 +351,10 @@ public static class TraceSynthesizer
     /// symmetry of real sequences separates. One pass over the frequencies, in parallel ranges; each frequency sums the
     /// pairs in order, so the result does not depend on the threads.
     /// </summary>
-    private static void AddFarFields(Complex[][] deposits, double[][] kernels, Complex[] sum)
+    private static unsafe void AddFarFields(AlignedComplexArray[] deposits, double[][] kernels, AlignedComplexArray spectrum)
     {
-        var n = sum.Length;
+        var n = spectrum.Length;
+        var (pairs, sum) = (deposits.Select(d => (nint)d.Pointer).ToArray(), (nint)spectrum.Pointer);
         var ranges = Math.Min(Environment.ProcessorCount, Math.Max(1, n / 4096));
         Parallel.For(0, ranges, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, r =>
         {
@@ -384,12 +362,12 @@ public static class TraceSynthesizer
             {
                 var mirrorIndex = (n - k) & (n - 1);
                 var total = Complex.Zero;
-                for (var p = 0; p < deposits.Length; p++)
+                for (var p = 0; p < pairs.Length; p++)
                 {
-                    var (a, b) = Unpack(deposits[p], k, mirrorIndex);
+                    var (a, b) = Unpack(new ReadOnlySpan<Complex>((Complex*)pairs[p], n), k, mirrorIndex);
                     total += a * new Complex(0, kernels[2 * p][k]) + b * kernels[2 * p + 1][k];
                 }
-                sum[k] += total;
+                ((Complex*)sum)[k] += total;
             }
         });
     }
@@ -400,7 +378,7 @@ public static class TraceSynthesizer
     /// symmetry separates them, X = (Z[k] + conj Z[-k]) / 2 and Y = (Z[k] - conj Z[-k]) / 2i.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static (Complex Real, Complex Imaginary) Unpack(Complex[] z, int k, int mirror)
+    private static (Complex Real, Complex Imaginary) Unpack(ReadOnlySpan<Complex> z, int k, int mirror)
     {
         var conjugate = Complex.Conjugate(z[mirror]);
         return (0.5 * (z[k] + conjugate), (z[k] - conjugate) * new Complex(0, -0.5));
@@ -420,12 +398,14 @@ public static class TraceSynthesizer
     /// on a grid <paramref name="oversampling"/> times finer than the trace's (of nq = n q points). The trace takes every
     /// q-th point of that convolution, whose transform folds the fine one: C[k] = (1/q) sum_m F[k + m n].
     /// </summary>
-    private static void AddSmooth(RenderLine[] lines, List<int> members, LineProfile profile, int oversampling, PhaseRotation phase, Axis axis, int n, Complex[] sum)
+    private static void AddSmooth(RenderLine[] lines, List<int> members, LineProfile profile, int oversampling, PhaseRotation phase, Axis axis, int n, AlignedComplexArray spectrum)
     {
         var nq = n * oversampling;
         var fineStep = axis.Step / oversampling;
         // Deposits in the real part, the profile at every distance in the imaginary part: one transform for both.
-        var z = Scratch(nq);
+        var buffer = AlignedComplexArray.Rent(nq);
+        var z = buffer.Span;
+        var sum = spectrum.Span;
         Span<double> weights = stackalloc double[LagrangeNodes];
         foreach (var l in members)
         {
@@ -461,7 +441,7 @@ public static class TraceSynthesizer
             }
             sum[k] += fold * total;
         }
-        Release(z);
+        buffer.Return();
     }
 
     /// <summary>Lagrange weights of the nodes -5 .. 6 for a point at <paramref name="t"/> in [0, 1).</summary>

@@ -4,13 +4,11 @@ namespace SpinSim.Tests.Spectrum;
 
 public class VoigtKernelTests
 {
+    /// <summary>Reduced Lorentzian widths y from nearly Gaussian to nearly Lorentzian; sqrt(ln 2) gives equal components.</summary>
+    public static TheoryData<double> Widths { get; } = [1e-3, 0.1, 0.8325546111576977, 3.0, 20.0, 150.0];
+
     [Theory]
-    [InlineData(1e-3)]
-    [InlineData(0.1)]
-    [InlineData(0.8325546111576977)] // sqrt(ln 2): equal Lorentzian and Gaussian components
-    [InlineData(3.0)]
-    [InlineData(20.0)]
-    [InlineData(150.0)]
+    [MemberData(nameof(Widths))]
     public void Kernel_MatchesFaddeeva_AcrossTablesAndWings(double y)
     {
         // Reference: Faddeeva.RealPart, itself checked against Johnson's test vectors and mpmath (FaddeevaTests).
@@ -35,22 +33,62 @@ public class VoigtKernelTests
     }
 
     /// <summary>
-    /// The near-field sweep (four points at a time where the processor gathers) gives each point what the kernel gives
-    /// it alone, across the fine and coarse tables and the asymptotic wing, for every span length and remainder.
+    /// The near-field sweep gives each point within <see cref="VoigtKernel.WingFrom"/> exactly what the kernel gives it
+    /// alone (the same quintic, eight or four points at a time), across the fine and coarse tables and the asymptotic
+    /// wing, for every span length and remainder; beyond it the wing series, held to the Faddeeva function.
     /// </summary>
     [Theory]
-    [InlineData(-20.0, 0.013, 3100)]   // across both tables, the fine one on both sides of zero
-    [InlineData(-120.0, 0.07, 3500)]   // from the asymptotic wing through every table and out again
+    [InlineData(-20.0, 0.013, 3100)]   // across both tables and both wing series, the fine table on both sides of zero
+    [InlineData(-120.0, 0.07, 3500)]   // from the far wing through every table and out again
+    [InlineData(-9.5, 0.0137, 1400)]   // into the core from the wing series and out the other side
     [InlineData(15.9, 0.0001, 7)]      // a short span across the fine-coarse boundary, with a remainder
-    [InlineData(99.9, 0.03, 13)]       // across the edge of the tables
+    [InlineData(8.99, 0.003, 61)]      // a short span across the start of the wing series
     [InlineData(3.0, -0.2, 1)]         // one point, stepping down
-    public void A_sweep_adds_the_same_values_as_the_kernel_point_by_point(double x0, double dx, int points)
+    [InlineData(40.0, -0.2, 401)]      // stepping down, from the wing through the core into the other wing
+    public void A_sweep_adds_the_kernel_within_its_core_and_the_faddeeva_function_beyond(double x0, double dx, int points)
     {
+        // References: the kernel point by point (itself held to Faddeeva.RealPart above) within the core, and
+        // Faddeeva.RealPart (checked against Johnson's test vectors and mpmath in FaddeevaTests) beyond it.
         var kernel = VoigtKernel.For(0.8325546111576977);
         var target = Enumerable.Range(0, points).Select(j => 0.25 * j).ToArray();
         kernel.AddRealPart(target, x0, dx, 1.7);
         var peak = kernel.RealPart(0);
+        int core = 0, wing = 0;
         for (var j = 0; j < points; j++)
-            Assert.Equal(0.25 * j + 1.7 * kernel.RealPart(x0 + j * dx), target[j], 1e-15 * Math.Max(1, 0.25 * j + 1.7 * peak));
+        {
+            var x = x0 + j * dx;
+            var added = target[j] - 0.25 * j;
+            if (Math.Abs(x) < kernel.WingFrom - 1e-9)
+            {
+                Assert.Equal(1.7 * kernel.RealPart(x), added, 1e-15 * Math.Max(1, 0.25 * j));
+                core++;
+            }
+            else if (Math.Abs(x) > kernel.WingFrom + 1e-9)
+            {
+                Assert.True(Math.Abs(added - 1.7 * Faddeeva.RealPart(x, kernel.Y)) <= 1e-13 * 1.7 * peak + 1e-15 * 0.25 * j, $"x = {x}");
+                wing++;
+            }
+        }
+        Assert.True(core + wing >= points - 2);
+    }
+
+    [Theory]
+    [MemberData(nameof(Widths))]
+    public void The_wing_series_holds_from_where_it_starts_and_not_far_inside(double y)
+    {
+        // Reference: Faddeeva.RealPart (FaddeevaTests). The series is asymptotic: from WingFrom on it must be within
+        // 1e-13 of the peak (the remainder bound says so); well inside, at a quarter of that, it must not be (else the
+        // bound, and with it the table's share of the sweep, would be far larger than needed, or the series wrong).
+        var kernel = VoigtKernel.For(y);
+        var peak = Faddeeva.RealPart(0, y);
+        var worst = 0.0;
+        for (var k = 0; k <= 4000; k++)
+        {
+            var x = kernel.WingFrom * Math.Pow(50, k / 4000.0);
+            worst = Math.Max(worst, Math.Abs(kernel.WingSeries(x) - Faddeeva.RealPart(x, y)));
+        }
+        Assert.True(worst <= 1e-13 * peak, $"wing from {kernel.WingFrom}: error {worst / peak:E2} of the peak");
+        var inside = 0.25 * kernel.WingFrom;
+        Assert.True(Math.Abs(kernel.WingSeries(inside) - Faddeeva.RealPart(inside, y)) > 1e-13 * peak, $"wing from {kernel.WingFrom}");
     }
 }
