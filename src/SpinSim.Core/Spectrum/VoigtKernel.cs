@@ -269,23 +269,28 @@ internal sealed unsafe class VoigtKernel
 
     /// <summary>
     /// The least |x| from which the wing series' remainder is within <see cref="WingTolerance"/> of the peak. The remainder
-    /// after the terms below K = 2 <see cref="WingTerms"/> is (i / sqrt(pi)) E[zeta^K / (x^K (x - zeta))]; |x - zeta| is at
-    /// least |x| / 2 where |t| &lt;= |x| / 2 and at least y elsewhere, so it is at most
-    /// (2 sqrt(S) / |x| + sqrt(S P) / y) / (sqrt(pi) |x|^K), with S = E|zeta|^(2K) = E(t^2 + y^2)^K (Cauchy-Schwarz
-    /// bounds E|zeta|^K and its share where |t| &gt; |x| / 2) and P = erfc(|x| / 2) the chance of |t| &gt; |x| / 2.
+    /// after the terms below K = 2 <see cref="WingTerms"/> is (i / sqrt(pi)) E[zeta^K / (x^K (x - zeta))]. Where
+    /// |t| &lt;= a |x| (a = 0.7), |x - zeta| is at least (1 - a) |x|; elsewhere at least y. So it is at most
+    /// (E|zeta|^K / ((1 - a) |x|) + E[|zeta|^K; |t| &gt; a |x|] / y) / (sqrt(pi) |x|^K), where |zeta|^K = (t^2 + y^2)^(K/2)
+    /// is a polynomial in t^2, whose Gaussian moments are Gamma(j + 1/2) / sqrt(pi) over the whole line and
+    /// Gamma(j + 1/2, a^2 x^2) / sqrt(pi) beyond |t| = a |x| (upper incomplete gamma).
     /// </summary>
     private static double WingRadius(double y)
     {
-        const int k = 2 * WingTerms;
-        // S = sum_j C(K, j) y^(2(K - j)) E t^(2j), E t^(2j) = (2j - 1)!! / 2^j.
-        double s = 0, evenMoment = 1;
-        for (var j = 0; j <= k; j++)
+        const int half = WingTerms;
+        const double split = 0.7;
+        double Moment(double beyond)
         {
-            s += SpecialFunctions.Binomial(k, j) * Math.Pow(y, 2 * (k - j)) * evenMoment;
-            evenMoment *= (2 * j + 1) / 2.0;
+            double sum = 0;
+            for (var j = 0; j <= half; j++)
+                sum += SpecialFunctions.Binomial(half, j) * Math.Pow(y, 2 * (half - j))
+                    * (beyond == 0 ? SpecialFunctions.Gamma(j + 0.5) : SpecialFunctions.GammaUpperIncomplete(j + 0.5, beyond * beyond));
+            return sum / Math.Sqrt(Math.PI);
         }
+        var whole = Moment(0);
+        // Twice the bound: room for the special functions' own rounding.
+        double Bound(double x) => 2 * (whole / ((1 - split) * x) + Moment(split * x) / y) / (Math.Sqrt(Math.PI) * Math.Pow(x, 2 * half));
         var limit = WingTolerance * Faddeeva.RealPart(0, y);
-        double Bound(double x) => (2 * Math.Sqrt(s) / x + Math.Sqrt(s * SpecialFunctions.Erfc(x / 2)) / y) / (Math.Sqrt(Math.PI) * Math.Pow(x, k));
         // The bound falls with |x|: bisect between a point that fails and one that holds, in log |x|.
         double low = 1e-3, high = 1e-3;
         for (var doubling = 0; doubling < 64 && !(Bound(high) <= limit); doubling++) (low, high) = (high, 2 * high);
