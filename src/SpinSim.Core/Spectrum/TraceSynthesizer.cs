@@ -267,8 +267,9 @@ public static class TraceSynthesizer
 
     /// <summary>
     /// The transforms of 1/d^(K+1) for |d| &gt; R (0 within), K = 0 .. Terms - 1, on the circular layout of length n: for
-    /// even K the kernel is odd and its transform i t_K, for odd K it is even and its transform t_K; t_K is returned.
-    /// The last set is kept: a run of similar spectra reuses it.
+    /// even K the kernel is odd and its transform i t_K, for odd K it is even and its transform t_K. Returned per term
+    /// pair p (K = 2p, 2p + 1) as alpha = (t_K - t_(K+1)) / 2 and beta = (t_K + t_(K+1)) / 2 at frequencies 0 .. n/2, the
+    /// form <see cref="AddFarFields"/> uses. The last sets are kept: a run of similar spectra reuses them.
     /// </summary>
     private static double[][] FarKernels(int n, int radius)
     {
@@ -289,17 +290,17 @@ public static class TraceSynthesizer
                 z[n - d] = new Complex(-odd, even);
             }
             Fft.Forward(z);
-            var a = new double[n];
-            var b = new double[n];
-            for (var i = 0; i < n; i++)
+            var alpha = new double[n / 2 + 1];
+            var beta = new double[n / 2 + 1];
+            for (var i = 0; i <= n / 2; i++)
             {
                 var mirror = z[(n - i) & (n - 1)];
                 // Z = i t_K + i t_(K+1) is imaginary, t_K odd in the frequency index and t_(K+1) even.
-                a[i] = 0.5 * (z[i].Imaginary - mirror.Imaginary);
-                b[i] = 0.5 * (z[i].Imaginary + mirror.Imaginary);
+                var (odd, even) = (0.5 * (z[i].Imaginary - mirror.Imaginary), 0.5 * (z[i].Imaginary + mirror.Imaginary));
+                (alpha[i], beta[i]) = (0.5 * (odd - even), 0.5 * (odd + even));
             }
-            transforms[k] = a;
-            transforms[k + 1] = b;
+            transforms[k] = alpha;
+            transforms[k + 1] = beta;
         });
         lock (CacheLock)
         {
@@ -346,28 +347,39 @@ public static class TraceSynthesizer
     }
 
     /// <summary>
-    /// Adds to <paramref name="sum"/> the far fields of every term from the transformed packed deposits: pair p holds
-    /// terms K = 2p (kernel odd, transform i t_K) and K + 1 (kernel even, transform t_(K+1)), which the conjugate
-    /// symmetry of real sequences separates. One pass over the frequencies, in parallel ranges; each frequency sums the
-    /// pairs in order, so the result does not depend on the threads.
+    /// Adds to the spectrum the far fields of every term from the transformed packed deposits Z_p: pair p holds terms
+    /// K = 2p (kernel odd, transform i t_K) and K + 1 (kernel even, transform t_(K+1)), separated by conjugate symmetry
+    /// (<see cref="Unpack"/>). With W = conj Z_p[-k], the pair adds i t_K (Z + W) / 2 - i t_(K+1) (Z - W) / 2 =
+    /// i (alpha_k Z_p[k] + beta_k W); since t_K is odd in k and t_(K+1) even, alpha_(-k) = -beta_k and beta_(-k) = -alpha_k,
+    /// so the sum at -k is the conjugate of that at k (the far field is real): both come from the kernels' first half.
+    /// One pass, in parallel ranges; each
+    /// frequency sums the pairs in order, so the result does not depend on the threads.
     /// </summary>
     private static unsafe void AddFarFields(AlignedComplexArray[] deposits, double[][] kernels, AlignedComplexArray spectrum)
     {
         var n = spectrum.Length;
         var (pairs, sum) = (deposits.Select(d => (nint)d.Pointer).ToArray(), (nint)spectrum.Pointer);
-        var ranges = Math.Min(Environment.ProcessorCount, Math.Max(1, n / 4096));
+        var half = n / 2;
+        var ranges = Math.Min(Environment.ProcessorCount, Math.Max(1, n / 8192));
         Parallel.For(0, ranges, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, r =>
         {
-            for (var k = (int)((long)n * r / ranges); k < (int)((long)n * (r + 1) / ranges); k++)
+            var output = (Complex*)sum;
+            for (var k = (int)((long)(half + 1) * r / ranges); k < (int)((long)(half + 1) * (r + 1) / ranges); k++)
             {
-                var mirrorIndex = (n - k) & (n - 1);
-                var total = Complex.Zero;
+                var m = (n - k) & (n - 1);
+                double re = 0, im = 0;
                 for (var p = 0; p < pairs.Length; p++)
                 {
-                    var (a, b) = Unpack(new ReadOnlySpan<Complex>((Complex*)pairs[p], n), k, mirrorIndex);
-                    total += a * new Complex(0, kernels[2 * p][k]) + b * kernels[2 * p + 1][k];
+                    var z = (Complex*)pairs[p];
+                    double alpha = kernels[2 * p][k], beta = kernels[2 * p + 1][k];
+                    // alpha Z[k] + beta conj Z[m].
+                    re += alpha * z[k].Real + beta * z[m].Real;
+                    im += alpha * z[k].Imaginary - beta * z[m].Imaginary;
                 }
-                ((Complex*)sum)[k] += total;
+                // i (re + i im) at k; at -k, -i (beta Z[m] + alpha conj Z[k]) = -i conj(re + i im), its conjugate: the far
+                // field is real.
+                output[k] += new Complex(-im, re);
+                if (m != k) output[m] += new Complex(-im, -re);
             }
         });
     }
