@@ -318,31 +318,25 @@ public static class TraceSynthesizer
     {
         var deposits = new AlignedComplexArray[Terms / 2];
         var c = new Complex(phase.Cos, phase.Sin) * Complex.ImaginaryOne / (Math.PI * axis.Step);
-        // Two halves of the term pairs on two threads: each works out every line's moments (cheap) and writes only its
-        // own arrays, so that the scattered writes, which cost most, are shared.
-        var halves = members.Count * Terms >= 100_000 ? Math.Min(2, Environment.ProcessorCount) : 1;
-        Parallel.For(0, halves, new ParallelOptions { MaxDegreeOfParallelism = halves }, h =>
+        // One thread: with the lines in position order the writes run along the arrays, and a second thread (each
+        // writing half the arrays) measured slower (6 against 5 ms for 100,000 lines).
+        var targets = new nint[deposits.Length];
+        for (var p = 0; p < deposits.Length; p++) targets[p] = (nint)(deposits[p] = AlignedComplexArray.Rent(n)).Pointer;
+        Span<double> values = stackalloc double[Terms];
+        // Both components scale with the width (Lineshape.Components): per Hz of width, in steps.
+        var unit = shape.Profile(1.0);
+        var (halfPerWidth, sigmaPerWidth) = (unit.LorentzianFwhmHz / 2 / axis.Step, unit.SigmaHz / axis.Step);
+        foreach (var l in members)
         {
-            var (from, to) = (deposits.Length * h / halves, deposits.Length * (h + 1) / halves);
-            var targets = new nint[deposits.Length];
-            for (var p = from; p < to; p++) targets[p] = (nint)(deposits[p] = AlignedComplexArray.Rent(n)).Pointer;
-            Span<Complex> moments = stackalloc Complex[Terms];
-            // Both components scale with the width (Lineshape.Components): per Hz of width, in steps.
-            var unit = shape.Profile(1.0);
-            var (halfPerWidth, sigmaPerWidth) = (unit.LorentzianFwhmHz / 2 / axis.Step, unit.SigmaHz / axis.Step);
-            foreach (var l in members)
-            {
-                var line = lines[l];
-                var (half, sigma) = (line.FwhmHz * halfPerWidth, line.FwhmHz * sigmaPerWidth);
-                var u = axis.Position(line.CentreHz);
-                var node = Math.Round(u);
-                Moments(new Complex(u - node, -half), sigma, moments[..(2 * to)]);
-                var slot = (int)((long)node & (n - 1));
-                var scale = c * line.Area;
-                for (var p = from; p < to; p++)
-                    ((Complex*)targets[p])[slot] += new Complex((scale * moments[2 * p]).Real, (scale * moments[2 * p + 1]).Real);
-            }
-        });
+            var line = lines[l];
+            var (half, sigma) = (line.FwhmHz * halfPerWidth, line.FwhmHz * sigmaPerWidth);
+            var u = axis.Position(line.CentreHz);
+            var node = Math.Round(u);
+            DepositValues(u - node, half, sigma * sigma, c * line.Area, values);
+            var slot = (int)((long)node & (n - 1));
+            for (var p = 0; p < targets.Length; p++)
+                ((Complex*)targets[p])[slot] += new Complex(values[2 * p], values[2 * p + 1]);
+        }
         return deposits;
     }
 
@@ -396,13 +390,24 @@ public static class TraceSynthesizer
         return (0.5 * (z[k] + conjugate), (z[k] - conjugate) * new Complex(0, -0.5));
     }
 
-    /// <summary>m_K = E[(w + g)^K] for g normal with deviation sigma: m_0 = 1, m_1 = w, m_(K+1) = w m_K + K sigma^2 m_(K-1).</summary>
-    private static void Moments(Complex w, double sigma, Span<Complex> m)
+    /// <summary>
+    /// The deposits Re[scale m_K] for K = 0 .. values.Length - 1, where m_K = E[(w + g)^K], w = offset - i half and g normal
+    /// of the given variance: m_0 = 1, m_1 = w, m_(K+1) = w m_K + K variance m_(K-1) (Stein's identity); in real arithmetic.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static void DepositValues(double offset, double half, double variance, Complex scale, Span<double> values)
     {
-        var variance = sigma * sigma;
-        m[0] = 1;
-        m[1] = w;
-        for (var k = 1; k < m.Length - 1; k++) m[k + 1] = w * m[k] + k * variance * m[k - 1];
+        var (sr, si) = (scale.Real, scale.Imaginary);
+        var (lastRe, lastIm, re, im) = (1.0, 0.0, offset, -half);
+        values[0] = sr;
+        values[1] = sr * re - si * im;
+        for (var k = 1; k < values.Length - 1; k++)
+        {
+            var nextRe = offset * re + half * im + k * variance * lastRe;
+            var nextIm = offset * im - half * re + k * variance * lastIm;
+            (lastRe, lastIm, re, im) = (re, im, nextRe, nextIm);
+            values[k + 1] = sr * re - si * im;
+        }
     }
 
     /// <summary>
