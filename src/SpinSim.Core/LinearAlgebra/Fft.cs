@@ -88,13 +88,20 @@ public static unsafe class Fft
     {
         try
         {
+            // Against the DFT's definition summed directly, not MathNet: its transform of 12 points runs Bluestein's
+            // algorithm in parallel, and the first transform is often asked for from parallel workers that then all
+            // wait on this check, so the pool had to grow a thread to finish it (about a second at start-up).
             var x = Enumerable.Range(0, 12).Select(j => new Complex(Math.Cos(0.7 * j) + 0.1 * j, Math.Sin(1.3 * j))).ToArray();
             foreach (var sign in new[] { ForwardSign, BackwardSign })
             {
-                var (native, managed) = ((Complex[])x.Clone(), (Complex[])x.Clone());
+                var native = (Complex[])x.Clone();
                 Native(native, sign);
-                Managed(managed, sign);
-                if (native.Zip(managed).Any(p => (p.First - p.Second).Magnitude > 1e-12)) return false;
+                for (var k = 0; k < x.Length; k++)
+                {
+                    var direct = Complex.Zero;
+                    for (var j = 0; j < x.Length; j++) direct += x[j] * Complex.FromPolarCoordinates(1, sign * 2 * Math.PI * (j * k % x.Length) / x.Length);
+                    if ((native[k] - direct).Magnitude > 1e-12) return false;
+                }
             }
             return true;
         }
