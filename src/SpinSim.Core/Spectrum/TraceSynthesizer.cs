@@ -52,6 +52,9 @@ public static class TraceSynthesizer
 
     private const int SmoothGroupMost = 8;
 
+    /// <summary>Up to this many evaluations (lines x points) every line is evaluated at every point, with no transform.</summary>
+    private const long DirectEvaluationsMost = 1L << 22;
+
     // Below this many profile evaluations a second thread costs more than it saves.
     private const long ParallelThresholdEvaluations = 400_000;
 
@@ -92,6 +95,16 @@ public static class TraceSynthesizer
         // In the order of their positions: deposits and near fields then write along the arrays, not all over them.
         var all = InPositionOrder(lines, axis);
         Classify(all.AsSpan(0, lines.Length), shape, phase, axis, smooth, multipole, direct);
+        // Few lines: each evaluated at every point costs less than the transforms (and, in a fresh process, than setting
+        // them up).
+        var transformed = multipole.Count + smooth.Sum(group => group.Lines.Count);
+        if ((long)transformed * points <= DirectEvaluationsMost)
+        {
+            foreach (var (_, _, group) in smooth) direct.AddRange(group);
+            direct.AddRange(multipole);
+            smooth.Clear();
+            multipole.Clear();
+        }
 
         // The grid span the FFT must cover without wrapping: every deposit node and every output point.
         long lowest = 0, highest = points - 1;
@@ -171,12 +184,17 @@ public static class TraceSynthesizer
     private static void Classify(ReadOnlySpan<RenderLine> lines, Lineshape shape, PhaseRotation phase, Axis axis,
         List<(LineProfile, int, List<int>)> smooth, List<int> multipole, List<int> direct)
     {
-        var counts = FrequentWidths(lines, SmoothGroupMinimum);
-        var chosen = counts
-            .Select(g => (Width: g.Key, Count: g.Value, Oversampling: Oversampling(shape.Profile(g.Key, tabulated: true), phase, axis.Step)))
-            .Where(g => g.Count >= SmoothGroupMinimum && g.Oversampling > 0)
-            .OrderByDescending(g => g.Count).Take(SmoothGroupMost)
-            .ToDictionary(g => g.Width, g => (Profile: shape.Profile(g.Width, tabulated: true), g.Oversampling, Lines: new List<int>(g.Count)));
+        // The most shared widths (up to SmoothGroupMost) that are smooth enough on some grid.
+        var candidates = new List<(double Width, int Count, int Oversampling)>();
+        foreach (var (width, count) in FrequentWidths(lines, SmoothGroupMinimum))
+        {
+            var oversampling = Oversampling(shape.Profile(width, tabulated: true), phase, axis.Step);
+            if (oversampling > 0) candidates.Add((width, count, oversampling));
+        }
+        candidates.Sort((a, b) => b.Count.CompareTo(a.Count));
+        var chosen = new Dictionary<double, (LineProfile Profile, int Oversampling, List<int> Lines)>();
+        foreach (var (width, count, oversampling) in candidates.Take(SmoothGroupMost))
+            chosen[width] = (shape.Profile(width, tabulated: true), oversampling, new List<int>(count));
         // A pure Gaussian's absorption is negligible a few widths out: it needs no far field.
         var gaussianAbsorption = shape.Kind == LineshapeKind.Gaussian && phase.Sin == 0;
         for (var l = 0; l < lines.Length; l++)
@@ -280,12 +298,14 @@ public static class TraceSynthesizer
         Parallel.For(0, Terms / 2, pair =>
         {
             var k = 2 * pair;
-            var z = new Complex[n];
+            var buffer = AlignedComplexArray.Rent(n);
+            var z = buffer.Span;
             for (var d = radius + 1; d < n / 2; d++)
             {
-                var odd = 1.0 / d;
-                for (var p = 0; p < k; p++) odd /= d;
-                var even = odd / d;
+                var inverse = 1.0 / d;
+                var odd = inverse;
+                for (var p = 0; p < k; p++) odd *= inverse;
+                var even = odd * inverse;
                 z[d] = new Complex(odd, even);
                 z[n - d] = new Complex(-odd, even);
             }
@@ -301,6 +321,7 @@ public static class TraceSynthesizer
             }
             transforms[k] = alpha;
             transforms[k + 1] = beta;
+            buffer.Return();
         });
         lock (CacheLock)
         {
@@ -485,7 +506,7 @@ public static class TraceSynthesizer
         var cumulative = new long[near.Count + 1];
         for (var i = 0; i < near.Count; i++)
         {
-            var (first, last) = Window(lines[near[i].Line], near[i].Radius, shape, axis);
+            var (first, last) = Window(lines[near[i].Line], near[i].Radius, shape, phase, axis);
             cumulative[i + 1] = cumulative[i] + Math.Max(0, last - first + 1);
         }
         var work = cumulative[^1];
@@ -504,7 +525,7 @@ public static class TraceSynthesizer
             for (var i = bounds[t]; i < bounds[t + 1]; i++)
             {
                 var line = lines[near[i].Line];
-                var (first, last) = Window(line, near[i].Radius, shape, axis);
+                var (first, last) = Window(line, near[i].Radius, shape, phase, axis);
                 var profile = shape.Profile(line.FwhmHz, tabulated: true);
                 if (last >= first)
                     profile.AddPhased(buffer.AsSpan(first, last - first + 1), axis.FirstHz - line.CentreHz + first * axis.Step, axis.Step, line.Area, phase);
@@ -517,7 +538,7 @@ public static class TraceSynthesizer
         }
     }
 
-    private static (int First, int Last) Window(RenderLine line, int radius, Lineshape shape, Axis axis)
+    private static (int First, int Last) Window(RenderLine line, int radius, Lineshape shape, PhaseRotation phase, Axis axis)
     {
         var u = axis.Position(line.CentreHz);
         double low, high;
@@ -529,8 +550,9 @@ public static class TraceSynthesizer
         else
         {
             var profile = shape.Profile(line.FwhmHz);
-            // exp(-x^2 / 2) < 1e-15 beyond x = 8.3: a Gaussian holds less than 1e-15 of its area there.
-            var reach = profile.IsGaussian ? 8.3 * profile.SigmaHz / axis.Step : double.PositiveInfinity;
+            // exp(-x^2 / 2) < 1e-15 beyond x = 8.3: a Gaussian holds less than 1e-15 of its area there (its dispersion,
+            // drawn with a phase error, falls only as 1/x: everywhere then).
+            var reach = profile.IsGaussian && phase.Sin == 0 ? 8.3 * profile.SigmaHz / axis.Step : double.PositiveInfinity;
             (low, high) = (Math.Ceiling(u - reach), Math.Floor(u + reach));
         }
         low = Math.Max(low, 0);

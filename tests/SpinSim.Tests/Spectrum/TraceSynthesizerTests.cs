@@ -24,6 +24,10 @@ public class TraceSynthesizerTests
         { LineshapeKind.Lorentzian, 500, 13, 30 },
         { LineshapeKind.Gaussian, 500, 14, -75 },
         { LineshapeKind.Voigt, 500, 15, 120 },
+        // Enough lines for the transforms (500 x 4,096 evaluations are drawn directly, line by line).
+        { LineshapeKind.Lorentzian, 3_000, 16, 30 },
+        { LineshapeKind.Gaussian, 3_000, 17, -75 },
+        { LineshapeKind.Voigt, 3_000, 18, 120 },
     };
 
     [Theory]
