@@ -521,7 +521,13 @@ public static class TraceSynthesizer
         var buffers = new double[threads][];
         Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads }, t =>
         {
-            var buffer = t == 0 ? trace : buffers[t] = new double[trace.Length];
+            // The other threads' buffers from the pool (a fresh one costs its page faults on every trace).
+            if (t > 0)
+            {
+                buffers[t] = ArrayPool<double>.Shared.Rent(trace.Length);
+                Array.Clear(buffers[t], 0, trace.Length);
+            }
+            var buffer = t == 0 ? trace : buffers[t];
             for (var i = bounds[t]; i < bounds[t + 1]; i++)
             {
                 var line = lines[near[i].Line];
@@ -535,6 +541,7 @@ public static class TraceSynthesizer
         {
             var buffer = buffers[t];
             for (var i = 0; i < trace.Length; i++) trace[i] += buffer[i];
+            ArrayPool<double>.Shared.Return(buffer);
         }
     }
 
