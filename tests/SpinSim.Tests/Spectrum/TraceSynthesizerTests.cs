@@ -199,6 +199,27 @@ public class TraceSynthesizerTests
 
     /// <summary>The area of a unit profile beyond <paramref name="distanceHz"/> from its centre, on one side.</summary>
     /// <summary>Issue 14's property: the synthesised trace within 1e-9 of the tallest point of the direct sum of whole profiles.</summary>
+    [Theory]
+    [InlineData(LineshapeKind.Gaussian)]
+    [InlineData(LineshapeKind.Voigt)]
+    public void Lines_far_outside_the_grid_keep_their_dispersion_tails_under_a_phase_error(LineshapeKind kind)
+    {
+        // Lines one and a half to three grid widths beyond either end are drawn directly at every point. Their absorption
+        // is negligible there, but with a phase error the dispersion falls only as 1/x and reaches the grid (a Gaussian's
+        // window of 8.3 sigma, right for absorption, once cut it off). Reference and property as above, with the lines
+        // inside the grid kept small so that the tails matter.
+        var grid = new SpectrumGrid(8, 7, 4_096, ObserveMHz);
+        var span = 1 * ObserveMHz;
+        var step = Math.Abs(grid.StepHz);
+        var lines = new[]
+        {
+            new RenderLine(8 * ObserveMHz + 1.5 * span, 1.0, 6 * step),
+            new RenderLine(7 * ObserveMHz - 3.0 * span, 0.7, 4 * step),
+            new RenderLine(7.5 * ObserveMHz, 1e-3, 3 * step),
+        };
+        AssertMatchesTheDirectSum(lines, grid, kind, 60, $"{kind}, far outside, phased");
+    }
+
     private static void AssertMatchesTheDirectSum(RenderLine[] lines, SpectrumGrid grid, LineshapeKind kind, double phaseDeg, string label)
     {
         var shape = Lineshape.FromKind(kind);
