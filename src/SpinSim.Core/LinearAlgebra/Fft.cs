@@ -16,7 +16,8 @@ namespace SpinSim.Core.LinearAlgebra;
 /// address modulo 64) under a lock, with FFTW_ESTIMATE (no timing runs, arrays untouched) on the caller's own pinned
 /// array, and then executed on any array of that alignment with fftw_execute_dft. FFTW's vector code needs 16-byte
 /// alignment, which managed arrays do not promise: <see cref="AlignedComplexArray"/> gives it (2.7 times faster at
-/// 131,072 points). System.Numerics.Complex is two doubles, real then imaginary, which is FFTW's fftw_complex.
+/// 131,072 points). An array not on a 64-byte boundary is transformed in an aligned copy, so that every transform
+/// runs the same code and its result does not depend on where the array lies. System.Numerics.Complex is two doubles, real then imaginary, which is FFTW's fftw_complex.
 /// </remarks>
 public static unsafe class Fft
 {
@@ -67,7 +68,22 @@ public static unsafe class Fft
     internal static void Native(Span<Complex> data, int sign)
     {
         if (data.Length == 0) return;
-        fixed (Complex* p = data) ExecuteDft(PlanFor(data.Length, sign, p), p, p);
+        fixed (Complex* p = data)
+        {
+            if ((long)p % 64 == 0)
+            {
+                ExecuteDft(PlanFor(data.Length, sign, p), p, p);
+                return;
+            }
+        }
+        // Not on a 64-byte boundary: transformed in an aligned copy, so that the result never depends on where the
+        // caller's array happens to lie (FFTW's vector and scalar code differ in the last bits).
+        var aligned = AlignedComplexArray.Rent(data.Length);
+        var copy = aligned.Span;
+        data.CopyTo(copy);
+        fixed (Complex* q = copy) ExecuteDft(PlanFor(data.Length, sign, q), q, q);
+        copy.CopyTo(data);
+        aligned.Return();
     }
 
     private static nint PlanFor(int n, int sign, Complex* data)
@@ -76,7 +92,7 @@ public static unsafe class Fft
         lock (PlanLock)
         {
             if (Plans.TryGetValue((n, sign, alignment), out var plan)) return plan;
-            // In place, on the caller's pinned array: FFTW_ESTIMATE leaves it untouched.
+            // In place, on the caller's pinned (aligned) array: FFTW_ESTIMATE leaves it untouched.
             plan = PlanDft1d(n, data, data, sign, Estimate);
             if (plan == 0) throw new InvalidOperationException($"FFTW could not plan a transform of {n} points");
             Plans[(n, sign, alignment)] = plan;

@@ -48,7 +48,8 @@ internal sealed unsafe class VoigtKernel
     private VoigtKernel(double y)
     {
         Y = y;
-        double[] rows = [.. Tabulate(y, 0, FineReach, FineStepsPerUnit), .. Tabulate(y, FineReach, CoarseReach, CoarseStepsPerUnit)];
+        // One coarse interval beyond CoarseReach: |x| just below it can round to the interval that starts there.
+        double[] rows = [.. Tabulate(y, 0, FineReach, FineStepsPerUnit), .. Tabulate(y, FineReach, CoarseReach + 1.0 / CoarseStepsPerUnit, CoarseStepsPerUnit)];
         _storage = GC.AllocateArray<double>(rows.Length + RowLength, pinned: true);
         fixed (double* start = _storage)
         {

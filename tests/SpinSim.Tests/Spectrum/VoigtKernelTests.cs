@@ -38,18 +38,24 @@ public class VoigtKernelTests
     /// wing, for every span length and remainder; beyond it the wing series, held to the Faddeeva function.
     /// </summary>
     [Theory]
-    [InlineData(-20.0, 0.013, 3100)]   // across both tables and both wing series, the fine table on both sides of zero
-    [InlineData(-120.0, 0.07, 3500)]   // from the far wing through every table and out again
-    [InlineData(-9.5, 0.0137, 1400)]   // into the core from the wing series and out the other side
-    [InlineData(15.9, 0.0001, 7)]      // a short span across the fine-coarse boundary, with a remainder
-    [InlineData(8.99, 0.003, 61)]      // a short span across the start of the wing series
-    [InlineData(3.0, -0.2, 1)]         // one point, stepping down
-    [InlineData(40.0, -0.2, 401)]      // stepping down, from the wing through the core into the other wing
-    public void A_sweep_adds_the_kernel_within_its_core_and_the_faddeeva_function_beyond(double x0, double dx, int points)
+    // Equal components (y = sqrt(ln 2)): the series from |x| = 6.9, so these spans meet the fine table and the wings.
+    [InlineData(0.8325546111576977, -20.0, 0.013, 3100)]   // through the fine table, both sides of zero, and both wings
+    [InlineData(0.8325546111576977, -120.0, 0.07, 3500)]   // from the far wing through the table and out again
+    [InlineData(0.8325546111576977, -9.5, 0.0137, 1400)]   // into the core from the wing series and out the other side
+    [InlineData(0.8325546111576977, 8.99, 0.003, 61)]      // a short span across the start of the wing series
+    [InlineData(0.8325546111576977, 3.0, -0.2, 1)]         // one point, stepping down
+    [InlineData(0.8325546111576977, 40.0, -0.2, 401)]      // stepping down, from the wing through the core into the other
+    // Nearly Lorentzian (y = 150): the series only from |x| = 450, so the coarse table and the asymptotic edge are swept.
+    [InlineData(150.0, -20.0, 0.013, 3100)]                // across both tables, the fine one on both sides of zero
+    [InlineData(150.0, 15.9, 0.0001, 7)]                   // a short span across the fine-coarse boundary, with a remainder
+    [InlineData(150.0, 99.9, 0.03, 13)]                    // across the edge of the tables at 100
+    [InlineData(150.0, -130.0, 0.07, 3800)]                // from beyond the tables through all of them and out again
+    [InlineData(20.0, -70.0, 0.0211, 6700)]                // the coarse table out to the series at 60
+    public void A_sweep_adds_the_kernel_within_its_core_and_the_faddeeva_function_beyond(double y, double x0, double dx, int points)
     {
         // References: the kernel point by point (itself held to Faddeeva.RealPart above) within the core, and
         // Faddeeva.RealPart (checked against Johnson's test vectors and mpmath in FaddeevaTests) beyond it.
-        var kernel = VoigtKernel.For(0.8325546111576977);
+        var kernel = VoigtKernel.For(y);
         var target = Enumerable.Range(0, points).Select(j => 0.25 * j).ToArray();
         kernel.AddRealPart(target, x0, dx, 1.7);
         var peak = kernel.RealPart(0);
@@ -70,6 +76,22 @@ public class VoigtKernelTests
             }
         }
         Assert.True(core + wing >= points - 2);
+    }
+
+    [Theory]
+    [InlineData(150.0)]
+    [InlineData(3.0)]
+    public void The_kernel_holds_up_to_the_edge_of_its_tables(double y)
+    {
+        // Just below |x| = 100 the table position can round up to the interval that starts at 100, one past the coarse
+        // table's last: the kernel alone and a sweep must still give the Faddeeva function there (reference as above).
+        var kernel = VoigtKernel.For(y);
+        var peak = Faddeeva.RealPart(0, y);
+        foreach (var x in new[] { Math.BitDecrement(100.0), 100 - 1e-14, -Math.BitDecrement(100.0), 99.99999999 })
+            Assert.True(Math.Abs(kernel.RealPart(x) - Faddeeva.RealPart(x, y)) <= 1e-13 * peak, $"x = {x:R}");
+        var target = new double[16];
+        kernel.AddRealPart(target, Math.BitDecrement(100.0), 0, 1);
+        Assert.All(target, v => Assert.True(Math.Abs(v - Faddeeva.RealPart(100, y)) <= 1e-13 * peak, $"{v:R}"));
     }
 
     [Theory]
