@@ -12,12 +12,12 @@ namespace SpinSim.Core.LinearAlgebra;
 /// 1.4 ms on an unaligned array and 0.5 ms on an aligned one; the trace synthesiser does eight such transforms a trace.
 /// </summary>
 /// <remarks>
-/// FFTW's planner is not thread-safe, its execution is: plans are made once per length, direction and alignment (the
-/// address modulo 64) under a lock, with FFTW_ESTIMATE (no timing runs, arrays untouched) on the caller's own pinned
-/// array, and then executed on any array of that alignment with fftw_execute_dft. FFTW's vector code needs 16-byte
-/// alignment, which managed arrays do not promise: <see cref="AlignedComplexArray"/> gives it (2.7 times faster at
-/// 131,072 points). An array not on a 64-byte boundary is transformed in an aligned copy, so that every transform
-/// runs the same code and its result does not depend on where the array lies. System.Numerics.Complex is two doubles, real then imaginary, which is FFTW's fftw_complex.
+/// FFTW's planner is not thread-safe, its execution is: plans are made once per length and direction under a lock,
+/// with FFTW_ESTIMATE (no timing runs, arrays untouched) on a 64-byte-aligned array, and then executed with
+/// fftw_execute_dft on arrays of that alignment only. FFTW's vector code needs 16-byte alignment, which managed arrays
+/// do not promise: <see cref="AlignedComplexArray"/> gives it (2.7 times faster at 131,072 points), and any other array
+/// is transformed in an aligned copy, so that every transform runs the same code and its result does not depend on
+/// where the array lies. System.Numerics.Complex is two doubles, real then imaginary, which is FFTW's fftw_complex.
 /// </remarks>
 public static unsafe class Fft
 {
@@ -32,7 +32,7 @@ public static unsafe class Fft
     private static extern void ExecuteDft(nint plan, Complex* input, Complex* output);
 
     private static readonly Lock PlanLock = new();
-    private static readonly Dictionary<(int N, int Sign, long Alignment), nint> Plans = [];
+    private static readonly Dictionary<(int N, int Sign), nint> Plans = [];
     private static readonly Lazy<bool> NativeLoads = new(SelfTest);
 
     /// <summary>Which implementation runs: "native FFTW 3 (libfftw3.so.3)" or "managed (MathNet.Numerics)".</summary>
@@ -86,16 +86,16 @@ public static unsafe class Fft
         aligned.Return();
     }
 
-    private static nint PlanFor(int n, int sign, Complex* data)
+    /// <summary>The plan for <paramref name="n"/> points in place, made on <paramref name="aligned"/> (on a 64-byte boundary) the first time.</summary>
+    private static nint PlanFor(int n, int sign, Complex* aligned)
     {
-        var alignment = (long)data % 64;
         lock (PlanLock)
         {
-            if (Plans.TryGetValue((n, sign, alignment), out var plan)) return plan;
-            // In place, on the caller's pinned (aligned) array: FFTW_ESTIMATE leaves it untouched.
-            plan = PlanDft1d(n, data, data, sign, Estimate);
+            if (Plans.TryGetValue((n, sign), out var plan)) return plan;
+            // In place, on the caller's pinned array: FFTW_ESTIMATE leaves it untouched.
+            plan = PlanDft1d(n, aligned, aligned, sign, Estimate);
             if (plan == 0) throw new InvalidOperationException($"FFTW could not plan a transform of {n} points");
-            Plans[(n, sign, alignment)] = plan;
+            Plans[(n, sign)] = plan;
             return plan;
         }
     }

@@ -370,8 +370,7 @@ public static class TraceSynthesizer
     /// (<see cref="Unpack"/>). With W = conj Z_p[-k], the pair adds i t_K (Z + W) / 2 - i t_(K+1) (Z - W) / 2 =
     /// i (alpha_k Z_p[k] + beta_k W); since t_K is odd in k and t_(K+1) even, alpha_(-k) = -beta_k and beta_(-k) = -alpha_k,
     /// so the sum at -k is the conjugate of that at k (the far field is real): both come from the kernels' first half.
-    /// One pass, in parallel ranges; each
-    /// frequency sums the pairs in order, so the result does not depend on the threads.
+    /// One pass, in parallel ranges; each frequency sums the pairs in order, so the result does not depend on the threads.
     /// </summary>
     private static unsafe void AddFarFields(AlignedComplexArray[] deposits, double[][] kernels, AlignedComplexArray spectrum)
     {
